@@ -1,0 +1,131 @@
+//! The study: what the researcher wrote in the study file, checked and resolved.
+//! Keys are those of DESIGN.md; `parse` turns the TOML text into a [`Study`].
+
+mod parse;
+mod schema;
+
+pub use parse::parse_study;
+
+use std::path::PathBuf;
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Study {
+    pub name: String,
+    /// The study file itself, as named by the user (for messages).
+    pub path: PathBuf,
+    pub acquisition: Acquisition,
+    /// High-pass cutoff in seconds; 0 turns the drift basis off.
+    pub high_pass: f64,
+    pub hrf: HrfSettings,
+    pub trials: TrialSource,
+    pub events: Vec<EventSpec>,
+    pub models: Vec<ModelSpec>,
+    pub nuisance: Option<NuisanceSpec>,
+    pub thresholds: Thresholds,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Acquisition {
+    /// Repetition time in seconds.
+    pub tr: f64,
+    pub scans: ScanCounts,
+    /// Microtime bins per TR.
+    pub microtime: usize,
+    /// Where in the TR each scan is sampled, as a fraction of the TR.
+    pub reference: f64,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum ScanCounts {
+    /// The same number of volumes in every run.
+    Fixed(usize),
+    /// A table with columns subject, run, scans (resolved path).
+    File(PathBuf),
+}
+
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct HrfSettings {
+    pub derivative: bool,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct TrialSource {
+    /// Resolved against the study file's folder.
+    pub file: PathBuf,
+    pub subject_column: String,
+    pub run_column: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct EventSpec {
+    pub name: String,
+    pub onset_column: String,
+    pub duration: Duration,
+    /// Long form: only rows whose `column` holds `value` are trials of this event.
+    pub selector: Option<RowSelector>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum Duration {
+    Seconds(f64),
+    Column(String),
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct RowSelector {
+    pub column: String,
+    pub value: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelSpec {
+    pub name: String,
+    pub modulators: Vec<ModulatorSpec>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModulatorSpec {
+    pub event: String,
+    pub column: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct NuisanceSpec {
+    /// Path template with `{subject}` and `{run}`, relative to the study file's folder.
+    pub template: String,
+    pub folder: PathBuf,
+    pub columns: Vec<String>,
+}
+
+impl NuisanceSpec {
+    pub fn path_for(&self, subject: &str, run: &str) -> PathBuf {
+        let relative = self
+            .template
+            .replace("{subject}", subject)
+            .replace("{run}", run);
+        self.folder.join(relative)
+    }
+}
+
+/// Screening thresholds. The VIF ones are common-practice rules of thumb, not laws;
+/// the condition-index one is Belsley, Kuh & Welsch's (1980) suggestion.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Thresholds {
+    pub vif_caution: f64,
+    pub vif_severe: f64,
+    pub condition_index: f64,
+}
+
+impl Default for Thresholds {
+    fn default() -> Self {
+        Thresholds {
+            vif_caution: 5.0,
+            vif_severe: 10.0,
+            condition_index: 30.0,
+        }
+    }
+}
+
+pub const DEFAULT_MICROTIME: usize = 16;
+pub const DEFAULT_REFERENCE: f64 = 0.5;
+pub const DEFAULT_HIGH_PASS: f64 = 128.0;

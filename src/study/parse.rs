@@ -1,0 +1,684 @@
+//! Study file (TOML) → [`Study`]. Walks the spanned TOML tree so that every problem —
+//! a misspelt key, a wrong type, an impossible value — is reported with its line and
+//! column, and all of them are reported together.
+
+use std::collections::BTreeSet;
+use std::ops::Range;
+use std::path::Path;
+
+use toml::Spanned;
+use toml::de::{DeTable, DeValue};
+
+use super::schema;
+use super::*;
+use crate::error::{Error, Location, Problem, Problems, Result};
+
+type Table<'i> = DeTable<'i>;
+
+/// Parses and validates a study file. `path` is used for messages and to resolve the
+/// relative paths inside it.
+pub fn parse_study(path: &Path, text: &str) -> Result<Study> {
+    let root = DeTable::parse(text).map_err(|err| {
+        let location = match err.span() {
+            Some(span) => Location::at_offset(path, text, span.start),
+            None => Location::file(path),
+        };
+        Error::input(
+            Problem::new(
+                location,
+                format!("not valid TOML: {}", err.message().trim()),
+            )
+            .with_hint("see the study file reference in the README"),
+        )
+    })?;
+    let mut reader = Reader {
+        path,
+        text,
+        problems: Problems::default(),
+    };
+    let study = reader.study(root.get_ref());
+    let Reader { problems, .. } = reader;
+    match study {
+        Some(study) => problems.finish(study),
+        None => Err(problems
+            .finish(())
+            .err()
+            .unwrap_or_else(|| Error::Internal("study rejected without a reason".into()))),
+    }
+}
+
+struct Reader<'a> {
+    path: &'a Path,
+    text: &'a str,
+    problems: Problems,
+}
+
+impl Reader<'_> {
+    fn at(&self, span: Range<usize>) -> Location {
+        Location::at_offset(self.path, self.text, span.start)
+    }
+
+    fn problem(&mut self, span: Range<usize>, message: impl Into<String>) {
+        let problem = Problem::new(self.at(span), message);
+        self.problems.push(problem);
+    }
+
+    fn problem_with_hint(&mut self, span: Range<usize>, message: String, hint: String) {
+        let problem = Problem::new(self.at(span), message).with_hint(hint);
+        self.problems.push(problem);
+    }
+
+    fn study(&mut self, root: &Table<'_>) -> Option<Study> {
+        self.check_keys(root, "", schema::TOP_LEVEL);
+        let dir = self.path.parent().unwrap_or(Path::new("")).to_path_buf();
+        let empty = Table::default();
+
+        let study = self.section(root, "study").unwrap_or(&empty);
+        let name = self.string(study, "name").map(|(name, _)| name);
+
+        let acquisition = self.acquisition(root, &dir);
+        let filter = self.section(root, "filter").unwrap_or(&empty);
+        let high_pass = match self.number(filter, "high_pass") {
+            Some((value, span)) if value < 0.0 => {
+                self.problem(span, "high_pass must be 0 (off) or a cutoff in seconds > 0");
+                None
+            }
+            Some((value, _)) => Some(value),
+            None => Some(DEFAULT_HIGH_PASS),
+        };
+        let hrf = self.section(root, "hrf").unwrap_or(&empty);
+        let derivative = self.boolean(hrf, "derivative").unwrap_or(false);
+        let trials = self.trials(root, &dir);
+        let events = self.events(root);
+        let models = self.models(root, events.as_deref().unwrap_or(&[]));
+        let nuisance = self.nuisance(root, &dir);
+        let thresholds = self.thresholds(root);
+
+        let default_name = self
+            .path
+            .file_stem()
+            .map(|stem| stem.to_string_lossy().into_owned())
+            .unwrap_or_else(|| "study".into());
+        Some(Study {
+            name: name.unwrap_or(default_name),
+            path: self.path.to_path_buf(),
+            acquisition: acquisition?,
+            high_pass: high_pass?,
+            hrf: HrfSettings { derivative },
+            trials: trials?,
+            events: events?,
+            models: models?,
+            nuisance: nuisance?,
+            thresholds: thresholds?,
+        })
+    }
+
+    fn acquisition(&mut self, root: &Table<'_>, dir: &Path) -> Option<Acquisition> {
+        let Some(table) = self.section(root, "acquisition") else {
+            self.problems.push(
+                Problem::new(
+                    Location::file(self.path),
+                    "the study file has no [acquisition] section",
+                )
+                .with_hint("add [acquisition] with tr = <seconds> and scans = <volumes per run>"),
+            );
+            return None;
+        };
+        let tr = match self.number(table, "tr") {
+            Some((tr, span)) if tr <= 0.0 => {
+                self.problem(
+                    span,
+                    format!("tr must be a positive number of seconds, not {tr}"),
+                );
+                None
+            }
+            Some((tr, span)) if tr > 100.0 => {
+                self.problem_with_hint(
+                    span,
+                    format!("tr = {tr} seconds is implausible"),
+                    "tr is in seconds (e.g. 2.0), not milliseconds".into(),
+                );
+                None
+            }
+            Some((tr, _)) => Some(tr),
+            None => {
+                self.missing(table, "acquisition", "tr", "tr = 2.0   # seconds");
+                None
+            }
+        };
+        let scans = match (
+            self.positive_integer(table, "scans"),
+            self.string(table, "scans_file"),
+        ) {
+            (Some(_), Some((_, span))) => {
+                self.problem(span, "give either scans or scans_file, not both");
+                None
+            }
+            (Some(scans), None) => Some(ScanCounts::Fixed(scans)),
+            (None, Some((file, _))) => Some(ScanCounts::File(dir.join(file))),
+            (None, None) => {
+                if !has_key(table, "scans") {
+                    self.missing(
+                        table,
+                        "acquisition",
+                        "scans",
+                        "scans = 300   # volumes per run (or scans_file = \"scans.csv\")",
+                    );
+                }
+                None
+            }
+        };
+        let microtime = if has_key(table, "microtime") {
+            self.positive_integer(table, "microtime")
+        } else {
+            Some(DEFAULT_MICROTIME)
+        };
+        let reference = match self.number(table, "reference") {
+            Some((value, span)) if !(0.0..=1.0).contains(&value) => {
+                self.problem(
+                    span,
+                    format!("reference is a fraction of the TR between 0 and 1, not {value}"),
+                );
+                None
+            }
+            Some((value, _)) => Some(value),
+            None => Some(DEFAULT_REFERENCE),
+        };
+        Some(Acquisition {
+            tr: tr?,
+            scans: scans?,
+            microtime: microtime?,
+            reference: reference?,
+        })
+    }
+
+    fn trials(&mut self, root: &Table<'_>, dir: &Path) -> Option<TrialSource> {
+        let Some(table) = self.section(root, "trials") else {
+            self.problems.push(
+                Problem::new(
+                    Location::file(self.path),
+                    "the study file has no [trials] section",
+                )
+                .with_hint("add [trials] with file = \"trials.csv\""),
+            );
+            return None;
+        };
+        let file = match self.string(table, "file") {
+            Some((file, _)) => Some(dir.join(file)),
+            None => {
+                self.missing(table, "trials", "file", "file = \"trials.csv\"");
+                None
+            }
+        };
+        let subject = self
+            .string(table, "subject")
+            .map_or("subject".into(), |s| s.0);
+        let run = self.string(table, "run").map_or("run".into(), |s| s.0);
+        Some(TrialSource {
+            file: file?,
+            subject_column: subject,
+            run_column: run,
+        })
+    }
+
+    fn events(&mut self, root: &Table<'_>) -> Option<Vec<EventSpec>> {
+        let Some(entries) = self.array_of_tables(root, "event") else {
+            self.problems.push(
+                Problem::new(
+                    Location::file(self.path),
+                    "the study file declares no [[event]]",
+                )
+                .with_hint("add [[event]] with name = \"outcome\" and onset = \"<onset column>\""),
+            );
+            return None;
+        };
+        let mut events = Vec::new();
+        let mut names = BTreeSet::new();
+        let mut complete = true;
+        for (table, span) in entries {
+            self.check_keys(table, "event", schema::keys_of("event"));
+            let name = self.required_name(table, "event", span.clone(), &mut names);
+            let selector = match (
+                self.string(table, "type_column"),
+                self.string(table, "type"),
+            ) {
+                (Some((column, _)), Some((value, _))) => Some(Some(RowSelector { column, value })),
+                (None, None) => Some(None),
+                (Some((_, span)), None) | (None, Some((_, span))) => {
+                    self.problem(
+                        span,
+                        "long-form events need both type_column and type (the value selecting this event's rows)",
+                    );
+                    None
+                }
+            };
+            let onset = match self.string(table, "onset") {
+                Some((column, _)) => Some(column),
+                None if matches!(selector, Some(Some(_))) => Some("onset".to_string()),
+                None => {
+                    self.missing(
+                        table,
+                        "event",
+                        "onset",
+                        "onset = \"<column of onset times in seconds>\"",
+                    );
+                    None
+                }
+            };
+            let duration = match get(table, "duration") {
+                None => Some(Duration::Seconds(0.0)),
+                Some(value) => match value.get_ref() {
+                    DeValue::String(column) => Some(Duration::Column(column.to_string())),
+                    _ => match self.number(table, "duration") {
+                        Some((seconds, span)) if seconds < 0.0 => {
+                            self.problem(span, format!("duration cannot be negative ({seconds})"));
+                            None
+                        }
+                        Some((seconds, _)) => Some(Duration::Seconds(seconds)),
+                        None => None,
+                    },
+                },
+            };
+            match (name, onset, duration, selector) {
+                (Some(name), Some(onset_column), Some(duration), Some(selector)) => {
+                    events.push(EventSpec {
+                        name,
+                        onset_column,
+                        duration,
+                        selector,
+                    })
+                }
+                _ => complete = false,
+            }
+        }
+        complete.then_some(events)
+    }
+
+    fn models(&mut self, root: &Table<'_>, events: &[EventSpec]) -> Option<Vec<ModelSpec>> {
+        let entries = self.array_of_tables(root, "model").unwrap_or_default();
+        let event_names: Vec<&str> = events.iter().map(|e| e.name.as_str()).collect();
+        let mut models = Vec::new();
+        let mut names = BTreeSet::new();
+        let mut complete = true;
+        for (table, span) in entries {
+            self.check_keys(table, "model", schema::keys_of("model"));
+            let name = self.required_name(table, "model", span.clone(), &mut names);
+            let modulators = self.modulators(table, span, &event_names);
+            match (name, modulators) {
+                (Some(name), Some(modulators)) => models.push(ModelSpec { name, modulators }),
+                _ => complete = false,
+            }
+        }
+        complete.then_some(models)
+    }
+
+    fn modulators(
+        &mut self,
+        model: &Table<'_>,
+        model_span: Range<usize>,
+        event_names: &[&str],
+    ) -> Option<Vec<ModulatorSpec>> {
+        let Some(value) = get(model, "modulators") else {
+            self.problem_with_hint(
+                model_span,
+                "this [[model]] has no modulators".into(),
+                "add modulators = [ { event = \"outcome\", column = \"<trial table column>\" } ]"
+                    .into(),
+            );
+            return None;
+        };
+        let DeValue::Array(items) = value.get_ref() else {
+            self.problem(
+                value.span(),
+                "modulators must be a list of { event = ..., column = ... }",
+            );
+            return None;
+        };
+        let mut modulators = Vec::new();
+        let mut seen = BTreeSet::new();
+        let mut complete = true;
+        for item in items {
+            let DeValue::Table(entry) = item.get_ref() else {
+                self.problem(
+                    item.span(),
+                    "each modulator must be { event = \"...\", column = \"...\" }",
+                );
+                complete = false;
+                continue;
+            };
+            self.check_keys(entry, "modulators", schema::keys_of("modulators"));
+            let event = self.string(entry, "event");
+            let column = self.string(entry, "column");
+            let (Some((event, event_span)), Some((column, column_span))) = (event, column) else {
+                self.problem(item.span(), "each modulator needs both event and column");
+                complete = false;
+                continue;
+            };
+            if !event_names.contains(&event.as_str()) {
+                let hint = match schema::closest(&event, event_names) {
+                    Some(near) => format!(
+                        "did you mean \"{near}\"? declared events: {}",
+                        event_names.join(", ")
+                    ),
+                    None => format!("declared events: {}", event_names.join(", ")),
+                };
+                self.problem_with_hint(event_span, format!("unknown event \"{event}\""), hint);
+                complete = false;
+                continue;
+            }
+            if !seen.insert((event.clone(), column.clone())) {
+                self.problem(
+                    column_span,
+                    format!("modulator {event}/{column} is listed twice in this model"),
+                );
+                complete = false;
+                continue;
+            }
+            modulators.push(ModulatorSpec { event, column });
+        }
+        complete.then_some(modulators)
+    }
+
+    fn nuisance(&mut self, root: &Table<'_>, dir: &Path) -> Option<Option<NuisanceSpec>> {
+        let Some(table) = self.section(root, "nuisance") else {
+            return Some(None);
+        };
+        let template = match self.string(table, "file") {
+            Some((template, _)) => Some(template),
+            None => {
+                self.missing(
+                    table,
+                    "nuisance",
+                    "file",
+                    "file = \"confounds/{subject}_run-{run}.tsv\"",
+                );
+                None
+            }
+        };
+        let columns = match get(table, "columns") {
+            None => Some(Vec::new()),
+            Some(value) => self.string_list(value),
+        };
+        Some(Some(NuisanceSpec {
+            template: template?,
+            folder: dir.to_path_buf(),
+            columns: columns?,
+        }))
+    }
+
+    fn thresholds(&mut self, root: &Table<'_>) -> Option<Thresholds> {
+        let defaults = Thresholds::default();
+        let Some(table) = self.section(root, "thresholds") else {
+            return Some(defaults);
+        };
+        let positive = |reader: &mut Self, key: &str, default: f64| match reader.number(table, key)
+        {
+            Some((value, span)) if value <= 0.0 => {
+                reader.problem(span, format!("{key} must be positive, not {value}"));
+                None
+            }
+            Some((value, _)) => Some(value),
+            None => Some(default),
+        };
+        let caution = positive(self, "vif_caution", defaults.vif_caution);
+        let severe = positive(self, "vif_severe", defaults.vif_severe);
+        let index = positive(self, "condition_index", defaults.condition_index);
+        let (caution, severe) = (caution?, severe?);
+        if caution > severe {
+            let span = get(table, "vif_caution").map_or(0..0, |v| v.span());
+            self.problem(
+                span,
+                format!("vif_caution ({caution}) is above vif_severe ({severe})"),
+            );
+            return None;
+        }
+        Some(Thresholds {
+            vif_caution: caution,
+            vif_severe: severe,
+            condition_index: index?,
+        })
+    }
+
+    // ---- typed access -------------------------------------------------------
+
+    /// Reports every key of `table` that is not in `valid`, with the closest valid key.
+    fn check_keys(&mut self, table: &Table<'_>, section: &str, valid: &[&str]) {
+        for (key, _) in table.iter() {
+            let name: &str = key.get_ref();
+            if valid.contains(&name) {
+                continue;
+            }
+            let place = if section.is_empty() {
+                "at the top level".to_string()
+            } else {
+                format!("in [{section}]")
+            };
+            let hint = match schema::closest(name, valid) {
+                Some(near) => format!("did you mean `{near}`?"),
+                None => format!("valid keys here: {}", valid.join(", ")),
+            };
+            self.problem_with_hint(key.span(), format!("unknown key `{name}` {place}"), hint);
+        }
+    }
+
+    fn section<'t, 'i>(&mut self, root: &'t Table<'i>, name: &str) -> Option<&'t Table<'i>> {
+        let value = get(root, name)?;
+        match value.get_ref() {
+            DeValue::Table(table) => {
+                self.check_keys(table, name, schema::keys_of(name));
+                Some(table)
+            }
+            _ => {
+                self.problem(
+                    value.span(),
+                    format!(
+                        "[{name}] must be a table (a section), not a {}",
+                        value.get_ref().type_str()
+                    ),
+                );
+                None
+            }
+        }
+    }
+
+    fn array_of_tables<'t, 'i>(
+        &mut self,
+        root: &'t Table<'i>,
+        name: &str,
+    ) -> Option<Vec<(&'t Table<'i>, Range<usize>)>> {
+        let value = get(root, name)?;
+        let DeValue::Array(items) = value.get_ref() else {
+            self.problem_with_hint(
+                value.span(),
+                format!("`{name}` must be a list of tables"),
+                format!("write each one under its own [[{name}]] header"),
+            );
+            return None;
+        };
+        let mut tables = Vec::new();
+        for item in items {
+            match item.get_ref() {
+                DeValue::Table(table) => tables.push((table, item.span())),
+                other => self.problem(
+                    item.span(),
+                    format!(
+                        "each [[{name}]] must be a table, not a {}",
+                        other.type_str()
+                    ),
+                ),
+            }
+        }
+        Some(tables)
+    }
+
+    fn required_name(
+        &mut self,
+        table: &Table<'_>,
+        section: &str,
+        span: Range<usize>,
+        seen: &mut BTreeSet<String>,
+    ) -> Option<String> {
+        let Some((name, name_span)) = self.string(table, "name") else {
+            if !has_key(table, "name") {
+                self.problem(span, format!("this [[{section}]] has no name"));
+            }
+            return None;
+        };
+        if name.trim().is_empty() {
+            self.problem(name_span, format!("the {section} name is empty"));
+            return None;
+        }
+        if !seen.insert(name.clone()) {
+            self.problem(
+                name_span,
+                format!("two [[{section}]] entries are named \"{name}\""),
+            );
+            return None;
+        }
+        Some(name)
+    }
+
+    fn missing(&mut self, table: &Table<'_>, section: &str, key: &str, example: &str) {
+        let _ = table;
+        self.problems.push(
+            Problem::new(
+                Location::file(self.path),
+                format!("[{section}] is missing the required key `{key}`"),
+            )
+            .with_hint(format!("add: {example}")),
+        );
+    }
+
+    fn string(&mut self, table: &Table<'_>, key: &str) -> Option<(String, Range<usize>)> {
+        let value = get(table, key)?;
+        match value.get_ref() {
+            DeValue::String(text) => Some((text.to_string(), value.span())),
+            other => {
+                self.problem(
+                    value.span(),
+                    format!(
+                        "`{key}` must be a string in quotes, not a {}",
+                        other.type_str()
+                    ),
+                );
+                None
+            }
+        }
+    }
+
+    fn string_list(&mut self, value: &Spanned<DeValue<'_>>) -> Option<Vec<String>> {
+        let DeValue::Array(items) = value.get_ref() else {
+            self.problem(
+                value.span(),
+                "expected a list of strings, e.g. [\"tx\", \"ty\"]",
+            );
+            return None;
+        };
+        let mut list = Vec::new();
+        for item in items {
+            match item.get_ref() {
+                DeValue::String(text) => list.push(text.to_string()),
+                other => {
+                    self.problem(
+                        item.span(),
+                        format!("expected a string, not a {}", other.type_str()),
+                    );
+                    return None;
+                }
+            }
+        }
+        Some(list)
+    }
+
+    fn boolean(&mut self, table: &Table<'_>, key: &str) -> Option<bool> {
+        let value = get(table, key)?;
+        match value.get_ref() {
+            DeValue::Boolean(flag) => Some(*flag),
+            other => {
+                self.problem(
+                    value.span(),
+                    format!("`{key}` must be true or false, not a {}", other.type_str()),
+                );
+                None
+            }
+        }
+    }
+
+    /// A finite number (TOML integer or float).
+    fn number(&mut self, table: &Table<'_>, key: &str) -> Option<(f64, Range<usize>)> {
+        let value = get(table, key)?;
+        let parsed = match value.get_ref() {
+            DeValue::Integer(integer) => {
+                parse_integer(integer.as_str(), integer.radix()).map(|i| i as f64)
+            }
+            DeValue::Float(float) => float.as_str().replace('_', "").parse::<f64>().ok(),
+            other => {
+                self.problem(
+                    value.span(),
+                    format!("`{key}` must be a number, not a {}", other.type_str()),
+                );
+                return None;
+            }
+        };
+        match parsed {
+            Some(number) if number.is_finite() => Some((number, value.span())),
+            _ => {
+                self.problem(value.span(), format!("`{key}` must be a finite number"));
+                None
+            }
+        }
+    }
+
+    fn positive_integer(&mut self, table: &Table<'_>, key: &str) -> Option<usize> {
+        let value = get(table, key)?;
+        let DeValue::Integer(integer) = value.get_ref() else {
+            self.problem(
+                value.span(),
+                format!(
+                    "`{key}` must be a whole number, not a {}",
+                    value.get_ref().type_str()
+                ),
+            );
+            return None;
+        };
+        match parse_integer(integer.as_str(), integer.radix()) {
+            Some(n) if n > 0 => usize::try_from(n).ok(),
+            _ => {
+                self.problem(
+                    value.span(),
+                    format!(
+                        "`{key}` must be a positive whole number, not {}",
+                        integer.as_str()
+                    ),
+                );
+                None
+            }
+        }
+    }
+}
+
+fn get<'t, 'i>(table: &'t Table<'i>, key: &str) -> Option<&'t Spanned<DeValue<'i>>> {
+    table
+        .iter()
+        .find(|(name, _)| AsRef::<str>::as_ref(name.get_ref()) == key)
+        .map(|(_, value)| value)
+}
+
+fn has_key(table: &Table<'_>, key: &str) -> bool {
+    get(table, key).is_some()
+}
+
+fn parse_integer(text: &str, radix: u32) -> Option<i64> {
+    let digits = text.replace('_', "");
+    let digits = digits.trim_start_matches('+');
+    let digits = match radix {
+        16 => digits.trim_start_matches("0x"),
+        8 => digits.trim_start_matches("0o"),
+        2 => digits.trim_start_matches("0b"),
+        _ => digits,
+    };
+    i64::from_str_radix(digits, radix).ok()
+}
+
+#[cfg(test)]
+mod tests;

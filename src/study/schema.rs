@@ -1,0 +1,54 @@
+//! The keys a study file may use, so that a misspelt key is caught and the closest
+//! valid one suggested instead of being silently ignored.
+
+pub const TOP_LEVEL: &[&str] = &[
+    "study",
+    "acquisition",
+    "filter",
+    "hrf",
+    "trials",
+    "event",
+    "model",
+    "nuisance",
+    "thresholds",
+];
+
+/// Keys allowed inside each section (arrays of tables use the same list for every entry).
+pub fn keys_of(section: &str) -> &'static [&'static str] {
+    match section {
+        "study" => &["name"],
+        "acquisition" => &["tr", "scans", "scans_file", "microtime", "reference"],
+        "filter" => &["high_pass"],
+        "hrf" => &["derivative"],
+        "trials" => &["file", "subject", "run"],
+        "event" => &["name", "onset", "duration", "type_column", "type"],
+        "model" => &["name", "modulators"],
+        "modulators" => &["event", "column"],
+        "nuisance" => &["file", "columns"],
+        "thresholds" => &["vif_caution", "vif_severe", "condition_index"],
+        _ => &[],
+    }
+}
+
+/// The valid key most like `key`, if any is close enough to be a plausible typo.
+pub fn closest<'a>(key: &str, valid: &[&'a str]) -> Option<&'a str> {
+    valid
+        .iter()
+        .map(|candidate| (strsim::jaro_winkler(key, candidate), *candidate))
+        .filter(|(score, _)| *score >= 0.75)
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .map(|(_, candidate)| candidate)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn typos_find_their_key() {
+        assert_eq!(closest("hig_pass", keys_of("filter")), Some("high_pass"));
+        assert_eq!(closest("scan", keys_of("acquisition")), Some("scans"));
+        assert_eq!(closest("modulator", keys_of("model")), Some("modulators"));
+        assert_eq!(closest("zzzz", keys_of("model")), None);
+    }
+}
