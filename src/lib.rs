@@ -6,8 +6,11 @@
 //! run; → [`design::Design`] (the filtered design matrix) → [`diagnose::Diagnostics`]
 //! → [`screen`] flags and statuses → [`report`] renderers.
 
+pub mod design;
 pub mod error;
 pub mod files;
+pub mod flags;
 pub mod study;
+pub mod trials;
 
 pub use error::{Error, Result};

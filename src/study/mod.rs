@@ -129,3 +129,8 @@ impl Default for Thresholds {
 pub const DEFAULT_MICROTIME: usize = 16;
 pub const DEFAULT_REFERENCE: f64 = 0.5;
 pub const DEFAULT_HIGH_PASS: f64 = 128.0;
+
+/// The name in `known` most like `name` (for "did you mean" hints).
+pub fn closest_name<'a>(name: &str, known: &[&'a str]) -> Option<&'a str> {
+    schema::closest(name, known)
+}

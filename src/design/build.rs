@@ -1,0 +1,312 @@
+//! RunTrials (+ nuisance table) → Design. Pure: no file access.
+
+use std::path::PathBuf;
+
+use super::filter::DriftBasis;
+use super::hrf::{Kernel, sampled};
+use super::regressors::{Grid, event_regressor};
+use super::{Design, Regressor, RegressorKind, TrialValues};
+use crate::error::{Error, Location, Problem};
+use crate::flags::{Flag, Severity};
+use crate::study::{ModelSpec, Study};
+use crate::trials::{EventTrials, NuisanceTable, RunTrials};
+
+/// Everything about how designs are built that is the same for every run.
+#[derive(Debug, Clone)]
+pub struct DesignSettings {
+    pub tr: f64,
+    pub microtime: usize,
+    pub reference: f64,
+    pub high_pass: f64,
+    pub derivative: bool,
+    /// Mean-centre parametric modulators within run and event (the default).
+    pub centre: bool,
+    pub models: Vec<ModelSpec>,
+    /// The trial table, named in messages about a run.
+    pub trial_file: PathBuf,
+    response: Kernel,
+    response_derivative: Kernel,
+}
+
+impl DesignSettings {
+    pub fn new(study: &Study, centre: bool) -> Self {
+        let acquisition = &study.acquisition;
+        let dt = acquisition.tr / acquisition.microtime as f64;
+        let (response, response_derivative) = sampled(dt);
+        DesignSettings {
+            tr: acquisition.tr,
+            microtime: acquisition.microtime,
+            reference: acquisition.reference,
+            high_pass: study.high_pass,
+            derivative: study.hrf.derivative,
+            centre,
+            models: study.models.clone(),
+            trial_file: study.trials.file.clone(),
+            response,
+            response_derivative,
+        }
+    }
+}
+
+/// One regressor before sampling: which trials, with which heights.
+struct Pending {
+    regressor: Regressor,
+    event: usize,
+    heights: Vec<f64>,
+    included: bool,
+}
+
+pub fn build_design(
+    settings: &DesignSettings,
+    run: &RunTrials,
+    nuisance: Option<&NuisanceTable>,
+) -> Result<Design, Error> {
+    let grid = Grid::new(settings.tr, run.scans, settings.microtime, settings.reference);
+    let run_end = run.scans as f64 * settings.tr;
+    let mut flags = Vec::new();
+
+    // Trials starting after the last scan cannot affect the data: leave them out.
+    let kept: Vec<Vec<bool>> = run
+        .events
+        .iter()
+        .map(|event| event.onsets.iter().map(|&o| o < run_end).collect())
+        .collect();
+    for (event, kept) in run.events.iter().zip(&kept) {
+        timing_flags(event, kept, run_end, &mut flags);
+    }
+
+    let mut pending = Vec::new();
+    for (index, event) in run.events.iter().enumerate() {
+        let trials = kept[index].iter().filter(|&&k| k).count();
+        if trials == 0 {
+            flags.push(Flag::new(
+                Severity::Severe,
+                "event_absent",
+                vec![event.name.clone()],
+                format!("event \"{}\" has no trials in this run; its regressors are left out", event.name),
+            ));
+        }
+        pending.push(Pending {
+            regressor: Regressor {
+                name: event.name.clone(),
+                kind: RegressorKind::Onset,
+                event: Some(event.name.clone()),
+                model: None,
+                column: None,
+            },
+            event: index,
+            heights: kept[index].iter().map(|&k| if k { 1.0 } else { 0.0 }).collect(),
+            included: trials > 0,
+        });
+    }
+    let mut trial_values = Vec::new();
+    for model in &settings.models {
+        for spec in &model.modulators {
+            let Some((index, event)) = run.events.iter().enumerate().find(|(_, e)| e.name == spec.event) else {
+                continue;
+            };
+            let Some(values) = event.modulators.iter().find(|m| m.model == model.name && m.column == spec.column) else {
+                continue;
+            };
+            let name = modulator_name(model, &spec.column, &spec.event);
+            let heights = modulator_heights(&values.values, &kept[index], settings.centre);
+            let usable_values: Vec<Option<f64>> = values
+                .values
+                .iter()
+                .zip(&kept[index])
+                .map(|(v, &k)| if k { *v } else { None })
+                .collect();
+            modulator_flags(&name, event, &usable_values, &heights, &mut flags);
+            let included = pending[index].included && heights.iter().any(|h| *h != 0.0);
+            trial_values.push(TrialValues {
+                regressor: pending.len(),
+                event: event.name.clone(),
+                values: usable_values,
+            });
+            pending.push(Pending {
+                regressor: Regressor {
+                    name,
+                    kind: RegressorKind::Modulator,
+                    event: Some(event.name.clone()),
+                    model: Some(model.name.clone()),
+                    column: Some(spec.column.clone()),
+                },
+                event: index,
+                heights,
+                included,
+            });
+        }
+    }
+
+    let mut regressors = Vec::new();
+    let mut sampled_columns = Vec::new();
+    let mut included = Vec::new();
+    for (kernel, derivative) in [(&settings.response, false), (&settings.response_derivative, true)] {
+        if derivative && !settings.derivative {
+            continue;
+        }
+        for item in &pending {
+            let event = &run.events[item.event];
+            let column = event_regressor(&grid, kernel, &event.onsets, &event.durations, &item.heights);
+            let mut regressor = item.regressor.clone();
+            if derivative {
+                regressor.name = format!("{}:deriv", regressor.name);
+                regressor.kind = RegressorKind::Derivative;
+            }
+            regressors.push(regressor);
+            sampled_columns.push(column);
+            included.push(item.included);
+        }
+    }
+    if let Some(table) = nuisance {
+        for (name, column) in table.names.iter().zip(&table.columns) {
+            let taken = regressors.iter().any(|r: &Regressor| &r.name == name);
+            regressors.push(Regressor {
+                name: if taken { format!("nuisance:{name}") } else { name.clone() },
+                kind: RegressorKind::Nuisance,
+                event: None,
+                model: None,
+                column: Some(name.clone()),
+            });
+            sampled_columns.push(column.clone());
+            included.push(true);
+        }
+    }
+
+    let drift = DriftBasis::new(run.scans, settings.tr, settings.high_pass);
+    let in_model = included.iter().filter(|&&i| i).count() + drift.len();
+    if in_model > run.scans {
+        return Err(Problem::new(
+            Location::file(&settings.trial_file),
+            format!(
+                "subject {} run {}: the design has {in_model} columns ({} regressors + {} drift and constant) but only {} scans",
+                run.subject,
+                run.run,
+                in_model - drift.len(),
+                drift.len(),
+                run.scans
+            ),
+        )
+        .with_hint("check the scan count, or use fewer regressors")
+        .into());
+    }
+    let filtered = sampled_columns.iter().map(|c| drift.residualise(c)).collect();
+    Ok(Design {
+        subject: run.subject.clone(),
+        run: run.run.clone(),
+        scans: run.scans,
+        regressors,
+        sampled: sampled_columns,
+        filtered,
+        included,
+        drift_columns: drift.len(),
+        trial_values,
+        flags,
+    })
+}
+
+fn modulator_name(model: &ModelSpec, column: &str, event: &str) -> String {
+    let same_column_twice = model.modulators.iter().filter(|m| m.column == column).count() > 1;
+    if same_column_twice {
+        format!("{}:{column}@{event}", model.name)
+    } else {
+        format!("{}:{column}", model.name)
+    }
+}
+
+/// Stick heights: the value minus the mean over the run's kept trials that have one
+/// (when centring), 0 where the value is missing or the trial is left out.
+fn modulator_heights(values: &[Option<f64>], kept: &[bool], centre: bool) -> Vec<f64> {
+    let present: Vec<f64> = values
+        .iter()
+        .zip(kept)
+        .filter_map(|(v, &k)| if k { *v } else { None })
+        .collect();
+    let mean = if centre && !present.is_empty() {
+        present.iter().sum::<f64>() / present.len() as f64
+    } else {
+        0.0
+    };
+    let spread = present.iter().map(|v| (v - mean).abs()).fold(0.0, f64::max);
+    let scale = present.iter().map(|v| v.abs()).fold(0.0, f64::max);
+    values
+        .iter()
+        .zip(kept)
+        .map(|(v, &k)| match (v, k) {
+            // Differences at rounding level of the values count as no variation at all.
+            (Some(v), true) if spread > 1e-12 * scale.max(f64::MIN_POSITIVE) => v - mean,
+            _ => 0.0,
+        })
+        .collect()
+}
+
+fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Vec<Flag>) {
+    let late: Vec<usize> = event.lines.iter().zip(kept).filter(|(_, k)| !**k).map(|(l, _)| *l).collect();
+    if !late.is_empty() {
+        flags.push(Flag::new(
+            Severity::Caution,
+            "onset_after_run_end",
+            vec![event.name.clone()],
+            format!(
+                "{} trial(s) of \"{}\" start after the run ends at {run_end} s and are ignored (trial table line(s) {}); check the TR, the scan count and that onsets are in seconds",
+                late.len(),
+                event.name,
+                list_lines(&late)
+            ),
+        ));
+    }
+    let early = event.onsets.iter().filter(|&&o| o < 0.0).count();
+    if early > 0 {
+        flags.push(Flag::new(
+            Severity::Note,
+            "negative_onset",
+            vec![event.name.clone()],
+            format!("{early} trial(s) of \"{}\" start before the first scan; the part of their response inside the run is modelled", event.name),
+        ));
+    }
+    if event.missing_durations > 0 {
+        flags.push(Flag::new(
+            Severity::Note,
+            "missing_duration",
+            vec![event.name.clone()],
+            format!("{} trial(s) of \"{}\" have no duration and are modelled as impulses (0 s)", event.missing_durations, event.name),
+        ));
+    }
+}
+
+fn modulator_flags(name: &str, event: &EventTrials, values: &[Option<f64>], heights: &[f64], flags: &mut Vec<Flag>) {
+    let present = values.iter().filter(|v| v.is_some()).count();
+    let missing = values.len() - present;
+    if missing > 0 && present > 0 {
+        flags.push(Flag::new(
+            Severity::Note,
+            "missing_values",
+            vec![name.to_string()],
+            format!("{missing} of {} trials of \"{}\" have no value for {name}; they contribute 0 to the modulator", values.len(), event.name),
+        ));
+    }
+    if present > 0 && heights.iter().all(|h| *h == 0.0) {
+        flags.push(Flag::new(
+            Severity::Severe,
+            "constant_modulator",
+            vec![name.to_string()],
+            format!("{name} does not vary over the trials of this run; it is left out of the design and its VIF is undefined"),
+        ));
+    } else if present == 0 {
+        flags.push(Flag::new(
+            Severity::Severe,
+            "modulator_absent",
+            vec![name.to_string()],
+            format!("{name} has no values in this run; it is left out of the design"),
+        ));
+    }
+}
+
+fn list_lines(lines: &[usize]) -> String {
+    let shown: Vec<String> = lines.iter().take(5).map(|l| l.to_string()).collect();
+    if lines.len() > 5 {
+        format!("{}, …", shown.join(", "))
+    } else {
+        shown.join(", ")
+    }
+}

@@ -1,0 +1,75 @@
+//! The design each run will really have: onset regressors, parametric modulators,
+//! optional temporal derivatives and nuisance regressors, sampled at the scan times,
+//! then with the constant and the cosine drift basis projected out.
+
+mod build;
+pub mod filter;
+pub mod hrf;
+pub mod regressors;
+
+pub use build::{DesignSettings, build_design};
+
+use serde::Serialize;
+
+use crate::flags::Flag;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RegressorKind {
+    Onset,
+    Modulator,
+    Derivative,
+    Nuisance,
+}
+
+impl RegressorKind {
+    pub fn label(self) -> &'static str {
+        match self {
+            RegressorKind::Onset => "onset",
+            RegressorKind::Modulator => "modulator",
+            RegressorKind::Derivative => "derivative",
+            RegressorKind::Nuisance => "nuisance",
+        }
+    }
+
+    /// Regressors of interest: those a screening status is based on.
+    pub fn of_interest(self) -> bool {
+        matches!(self, RegressorKind::Onset | RegressorKind::Modulator)
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Regressor {
+    pub name: String,
+    pub kind: RegressorKind,
+    pub event: Option<String>,
+    pub model: Option<String>,
+    pub column: Option<String>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Design {
+    pub subject: String,
+    pub run: String,
+    pub scans: usize,
+    pub regressors: Vec<Regressor>,
+    /// Sampled columns before filtering, one per regressor.
+    pub sampled: Vec<Vec<f64>>,
+    /// The same columns with the constant and drift basis projected out.
+    pub filtered: Vec<Vec<f64>>,
+    /// `false` for regressors left out of the design (e.g. a constant modulator).
+    pub included: Vec<bool>,
+    /// Number of drift columns projected out, the constant included.
+    pub drift_columns: usize,
+    /// Trial-level (centred) modulator heights, for trial-level correlations.
+    pub trial_values: Vec<TrialValues>,
+    pub flags: Vec<Flag>,
+}
+
+/// The values of one modulator on the trials of its event (`None` = missing).
+#[derive(Debug, Clone)]
+pub struct TrialValues {
+    pub regressor: usize,
+    pub event: String,
+    pub values: Vec<Option<f64>>,
+}

@@ -1,0 +1,51 @@
+//! Screening flags: something a user must know about a run, with how much it matters.
+
+use serde::Serialize;
+
+/// How much a flag matters. `note`s inform and never change a status; `caution` and
+/// `severe` follow the study's thresholds; `error` means a number could not be computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    Note,
+    Caution,
+    Severe,
+    Error,
+}
+
+impl Severity {
+    pub fn label(self) -> &'static str {
+        match self {
+            Severity::Note => "note",
+            Severity::Caution => "caution",
+            Severity::Severe => "severe",
+            Severity::Error => "error",
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Flag {
+    pub severity: Severity,
+    /// A stable machine-readable code, e.g. `vif_severe`.
+    pub code: &'static str,
+    /// Names of the regressors involved (may be empty).
+    pub regressors: Vec<String>,
+    pub message: String,
+}
+
+impl Flag {
+    pub fn new(
+        severity: Severity,
+        code: &'static str,
+        regressors: Vec<String>,
+        message: impl Into<String>,
+    ) -> Self {
+        Flag {
+            severity,
+            code,
+            regressors,
+            message: message.into(),
+        }
+    }
+}

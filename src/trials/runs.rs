@@ -1,0 +1,214 @@
+//! Groups the rows of a trial table into runs and pulls out, for every event, its
+//! onsets, durations and the modulator values the study's models attach to it.
+
+use std::collections::HashMap;
+
+use super::{ScanTable, Table, check_label};
+use crate::error::{Error, Problem, Problems, Result};
+use crate::study::{Duration, Study};
+
+/// Everything the design builder needs to know about one run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RunTrials {
+    pub subject: String,
+    pub run: String,
+    pub scans: usize,
+    pub events: Vec<EventTrials>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct EventTrials {
+    pub name: String,
+    pub onsets: Vec<f64>,
+    pub durations: Vec<f64>,
+    /// Line of each trial in the trial table, for messages.
+    pub lines: Vec<usize>,
+    /// Trials whose duration cell was missing (taken as 0 s, an impulse).
+    pub missing_durations: usize,
+    /// One entry per modulator that a model attaches to this event, in study order.
+    pub modulators: Vec<ModulatorValues>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModulatorValues {
+    pub model: String,
+    pub column: String,
+    /// One value per trial of the event; `None` where the cell was missing.
+    pub values: Vec<Option<f64>>,
+}
+
+/// Column indices resolved once for the whole table.
+struct EventColumns {
+    onset: usize,
+    duration: Option<usize>,
+    selector: Option<(usize, String)>,
+    modulators: Vec<(String, String, usize)>,
+}
+
+pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<Vec<RunTrials>> {
+    let mut problems = Problems::default();
+    let mut column = |name: &str, wanted_by: String| match table.column(name, &wanted_by) {
+        Ok(index) => Some(index),
+        Err(problem) => {
+            problems.push(problem);
+            None
+        }
+    };
+    let subject_column = column(&study.trials.subject_column, "[trials] subject".into());
+    let run_column = column(&study.trials.run_column, "[trials] run".into());
+    let mut events = Vec::new();
+    for event in &study.events {
+        let onset = column(&event.onset_column, format!("the onset of event \"{}\"", event.name));
+        let duration = match &event.duration {
+            Duration::Seconds(_) => Some(None),
+            Duration::Column(name) => {
+                column(name, format!("the duration of event \"{}\"", event.name)).map(Some)
+            }
+        };
+        let selector = match &event.selector {
+            None => Some(None),
+            Some(selector) => column(&selector.column, format!("type_column of event \"{}\"", event.name))
+                .map(|index| Some((index, selector.value.clone()))),
+        };
+        let mut modulators = Vec::new();
+        for model in &study.models {
+            for modulator in model.modulators.iter().filter(|m| m.event == event.name) {
+                let wanted_by = format!("model \"{}\"", model.name);
+                if let Some(index) = column(&modulator.column, wanted_by) {
+                    modulators.push((model.name.clone(), modulator.column.clone(), index));
+                }
+            }
+        }
+        if let (Some(onset), Some(duration), Some(selector)) = (onset, duration, selector) {
+            events.push(EventColumns { onset, duration, selector, modulators });
+        }
+    }
+    let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
+        return Err(problems.finish(()).unwrap_err());
+    };
+    if !problems.is_empty() {
+        return Err(problems.finish(()).unwrap_err());
+    }
+
+    let mut runs: Vec<RunTrials> = Vec::new();
+    let mut index_of: HashMap<(String, String), usize> = HashMap::new();
+    for row in &table.rows {
+        let subject = &row.cells[subject_column];
+        let run = &row.cells[run_column];
+        let key = (subject.clone(), run.clone());
+        let run_index = match index_of.get(&key) {
+            Some(&index) => index,
+            None => {
+                let labels_ok = [
+                    check_label(subject, "subject", table.cell_location(row, subject_column)),
+                    check_label(run, "run", table.cell_location(row, run_column)),
+                ]
+                .into_iter()
+                .fold(true, |ok, result| match result {
+                    Ok(()) => ok,
+                    Err(problem) => {
+                        problems.push(problem);
+                        false
+                    }
+                });
+                if !labels_ok {
+                    continue;
+                }
+                let Some(count) = problems.keep(scans.scans(subject, run).map_err(Error::input))
+                else {
+                    index_of.insert(key, usize::MAX);
+                    continue;
+                };
+                runs.push(new_run(study, subject, run, count, &events));
+                index_of.insert(key, runs.len() - 1);
+                runs.len() - 1
+            }
+        };
+        if run_index == usize::MAX {
+            continue;
+        }
+        for (spec, (columns, trials)) in study
+            .events
+            .iter()
+            .zip(events.iter().zip(runs[run_index].events.iter_mut()))
+        {
+            if let Err(problem) = add_trial(table, row, spec, columns, trials) {
+                problems.push(problem);
+            }
+        }
+    }
+    problems.finish(runs)
+}
+
+fn new_run(study: &Study, subject: &str, run: &str, scans: usize, columns: &[EventColumns]) -> RunTrials {
+    let events = study
+        .events
+        .iter()
+        .zip(columns)
+        .map(|(event, columns)| EventTrials {
+            name: event.name.clone(),
+            onsets: Vec::new(),
+            durations: Vec::new(),
+            lines: Vec::new(),
+            missing_durations: 0,
+            modulators: columns
+                .modulators
+                .iter()
+                .map(|(model, column, _)| ModulatorValues {
+                    model: model.clone(),
+                    column: column.clone(),
+                    values: Vec::new(),
+                })
+                .collect(),
+        })
+        .collect();
+    RunTrials {
+        subject: subject.to_string(),
+        run: run.to_string(),
+        scans,
+        events,
+    }
+}
+
+fn add_trial(
+    table: &Table,
+    row: &super::Row,
+    spec: &crate::study::EventSpec,
+    columns: &EventColumns,
+    trials: &mut EventTrials,
+) -> Result<(), Problem> {
+    if let Some((column, value)) = &columns.selector {
+        if &row.cells[*column] != value {
+            return Ok(());
+        }
+    }
+    // A wide-form row without an onset for this event (e.g. a missed response) holds no trial of it.
+    let Some(onset) = table.number(row, columns.onset)? else {
+        return Ok(());
+    };
+    let duration = match (columns.duration, &spec.duration) {
+        (Some(column), _) => match table.number(row, column)? {
+            Some(d) if d < 0.0 => {
+                return Err(Problem::new(
+                    table.cell_location(row, column),
+                    format!("negative duration {d}"),
+                )
+                .with_hint("durations are in seconds and cannot be negative; use 0 for an impulse"));
+            }
+            Some(d) => d,
+            None => {
+                trials.missing_durations += 1;
+                0.0
+            }
+        },
+        (None, Duration::Seconds(seconds)) => *seconds,
+        (None, Duration::Column(_)) => 0.0,
+    };
+    for ((_, _, column), modulator) in columns.modulators.iter().zip(trials.modulators.iter_mut()) {
+        modulator.values.push(table.number(row, *column)?);
+    }
+    trials.onsets.push(onset);
+    trials.durations.push(duration);
+    trials.lines.push(row.line);
+    Ok(())
+}
