@@ -10,6 +10,7 @@ pub mod design;
 pub mod error;
 pub mod files;
 pub mod flags;
+pub mod forecast;
 pub mod study;
 pub mod trials;
 

@@ -1,0 +1,1 @@
+//! Learner models (filled in by the learner work).

@@ -1,0 +1,3 @@
+//! Simulated learners on a planned task (forecasting before scanning).
+
+pub mod learners;
