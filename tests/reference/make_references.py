@@ -1,0 +1,689 @@
+#!/usr/bin/env python3
+"""Reference values that the Rust tests of `tangle` compare against.
+
+    python3 tests/reference/make_references.py           # (re)write the reference files
+    python3 tests/reference/make_references.py --check   # regenerate in a temporary folder and compare
+
+Every file is written next to this script. Each value is computed by a route that is
+independent of the Rust code (statsmodels, scipy, or a dense numpy build), and each file
+names its source in a "source" entry. Library versions are pinned in requirements.txt.
+
+Files
+  longley.csv                  Longley (1967) data as shipped with statsmodels
+  longley_vif.json             VIFs (statsmodels variance_inflation_factor) and the
+                               Belsley-Kuh-Welsch table (numpy SVD) of the Longley design
+  hrf.json                     double-gamma response and its derivative (scipy gamma pdf)
+  design_fixture/study.toml    a tiny study file the Rust tool reads
+  design_fixture/trials.csv    its trial table (input; drawn once, then the source of truth)
+  design_fixture/expected.json the design those files imply, built densely with numpy
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import io
+import json
+import math
+import shutil
+import sys
+import tempfile
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import scipy
+import scipy.stats
+import statsmodels
+import statsmodels.api as sm
+from statsmodels.stats.outliers_influence import variance_inflation_factor
+
+HERE = Path(__file__).resolve().parent
+TOLERANCE = 1e-10  # relative and absolute, used by --check on every number
+
+LONGLEY_COLUMNS = ["TOTEMP", "GNPDEFL", "GNP", "UNEMP", "ARMED", "POP", "YEAR"]
+LONGLEY_PREDICTORS = LONGLEY_COLUMNS[1:]
+
+# Longley VIFs of the model TOTEMP ~ six predictors + intercept, from exact rational
+# arithmetic on the same data (shared research notes, stats-references.md section 1a).
+# Faraway (2002), Practical Regression and Anova using R, ch. 9, prints the same
+# numbers to 4 decimals (second list).
+LONGLEY_VIF_EXACT = [135.53243828000, 1788.5134827182, 33.618890596050,
+                     3.5889301934455, 399.15102231264, 758.98059740689]
+LONGLEY_VIF_FARAWAY_2002 = [135.5324, 1788.5135, 33.6189, 3.5889, 399.1510, 758.9806]
+
+# Belsley-Kuh-Welsch table of the Longley design with intercept, unit-length columns:
+# 60-digit mpmath reference from the shared research notes (stats-references.md
+# section 2a; stats-checks.json entry "bkw.longley").
+BKW_LONGLEY_SINGULAR_VALUES = [
+    2.6194260379240237, 0.2865353444387667, 0.21373063528161995, 0.10338503603611479,
+    0.011367855135606036, 0.0024992608323174837, 6.0529714606688876e-05]
+BKW_LONGLEY_CONDITION_INDICES = [
+    1.0, 9.14172051987045, 12.2557350492715, 25.336607098623, 230.423946001874,
+    1048.0802980036, 43275.043587184]
+BKW_LONGLEY_PROPORTIONS = [  # rows: dimensions (largest singular value first); columns: const, predictors
+    [1.54012660962e-10, 1.63666981515e-06, 6.74261783742e-07, 4.47150068756e-05, 0.000353694042903, 1.74076354037e-07, 1.54148018166e-10],
+    [8.16629069686e-10, 7.09553519086e-09, 7.52614359463e-06, 0.0142802789424, 0.0919084984734, 4.02169263279e-08, 7.70534913795e-10],
+    [3.34224711796e-08, 1.01227244429e-07, 0.000257174260274, 0.000836257571236, 0.0635650142637, 8.38927692717e-06, 3.19652023496e-08],
+    [1.19104046981e-09, 0.000344839061241, 0.00106504448143, 0.064642383938, 0.426724318897, 1.82108035335e-05, 1.42670613116e-09],
+    [5.26020429164e-07, 0.456765985566, 0.015656133, 0.00559481981202, 0.115402412264, 0.00968226779384, 5.27396867688e-07],
+    [0.000149137536844, 0.504556019425, 0.328385494487, 0.225344775998, 6.86501656001e-07, 0.830563569214, 0.000160314904404],
+    [0.999850300859, 0.0383314109551, 0.654627953365, 0.689256768732, 0.302045375558, 0.159727348618, 0.999839123382],
+]
+
+# h(t) at t = 0, 1, ..., 32 s computed with scipy.stats.gamma.pdf in the shared research
+# notes (stats-references.md section 9; stats-checks.json entry "hrf.double_gamma").
+HRF_UNIT_GRID_NOTES = [
+    0.0, 0.0030656620097151326, 0.036089408297886365, 0.10081872239396784,
+    0.15629094533107124, 0.17544116219546385, 0.1604745984542892, 0.12716489793477317,
+    0.09009933169072562, 0.057488434962452144, 0.03204692986362342, 0.013523199918010312,
+    0.0006754520447549636, -0.007752191666401691, -0.012760399940664956,
+    -0.015136856322163364, -0.015552907908972386, -0.014613627731408627,
+    -0.012856103472527447, -0.010725107747489995, -0.008553178158694663,
+    -0.006557656993913513, -0.004854453095297392, -0.003481830327992515,
+    -0.0024266218746080604, -0.0016473632276457306, -0.001091670643717331,
+    -0.0007074840464010106, -0.0004491363825534643, -0.0002797123430378808,
+    -0.00017111394776742753, -0.00010294635183715089, -6.097477004512873e-05]
+
+HRF_LENGTH = 32.0  # seconds; the kernel covers 0 <= t < 32
+
+STUDY_TOML = """\
+[study]
+name = "reference fixture (invented numbers)"
+[acquisition]
+tr = 2.0
+scans = 90
+microtime = 16
+reference = 0.5
+[filter]
+high_pass = 100.0
+[trials]
+file = "trials.csv"
+[[event]]
+name = "cue"
+onset = "cue_onset"
+[[event]]
+name = "outcome"
+onset = "outcome_onset"
+duration = "outcome_duration"
+[[model]]
+name = "a"
+modulators = [ { event = "cue", column = "a_value" }, { event = "outcome", column = "a_pe" } ]
+[[model]]
+name = "b"
+modulators = [ { event = "outcome", column = "b_pe" } ]
+"""
+
+# The same settings as STUDY_TOML, for the numpy build (the build does not parse TOML).
+FIXTURE = {
+    "tr": 2.0, "scans": 90, "microtime": 16, "reference": 0.5, "high_pass": 100.0,
+    "events": {"cue": ("cue_onset", None), "outcome": ("outcome_onset", "outcome_duration")},
+    # (regressor name, event, modulator column or None for the onset regressor)
+    "regressors": [("cue", "cue", None), ("outcome", "outcome", None),
+                   ("a:a_value", "cue", "a_value"), ("a:a_pe", "outcome", "a_pe"),
+                   ("b:b_pe", "outcome", "b_pe")],
+}
+TRIAL_COLUMNS = ["subject", "run", "cue_onset", "outcome_onset", "outcome_duration",
+                 "a_value", "a_pe", "b_pe"]
+MISSING = {"", "n/a"}
+
+
+# --------------------------------------------------------------------------- helpers
+
+def check(condition: bool, message: str) -> None:
+    """A self-check of the reference values; stops with a clear message when it fails."""
+    if not condition:
+        raise SystemExit(f"make_references.py: self-check failed: {message}")
+
+
+def max_rel_err(a, b) -> float:
+    a, b = np.asarray(a, float), np.asarray(b, float)
+    return float(np.max(np.abs(a - b) / np.abs(b)))
+
+
+def max_abs_err(a, b) -> float:
+    a, b = np.asarray(a, float), np.asarray(b, float)
+    return float(np.max(np.abs(a - b)))
+
+
+def floats(values) -> list:
+    out = [float(v) for v in np.asarray(values, float).ravel()]
+    check(all(math.isfinite(v) for v in out), "a reference value is not finite")
+    return out
+
+
+def matrix(values) -> list:
+    return [floats(row) for row in np.asarray(values, float)]
+
+
+def format_json(obj, level: int = 0) -> str:
+    """JSON with full float precision (repr); lists of scalars on one line."""
+    pad, inner = " " * level, " " * (level + 1)
+    if isinstance(obj, dict):
+        if not obj:
+            return "{}"
+        items = [f"{inner}{json.dumps(k)}: {format_json(v, level + 1)}" for k, v in obj.items()]
+        return "{\n" + ",\n".join(items) + "\n" + pad + "}"
+    if isinstance(obj, list) and any(isinstance(v, (list, dict)) for v in obj):
+        items = [inner + format_json(v, level + 1) for v in obj]
+        return "[\n" + ",\n".join(items) + "\n" + pad + "]"
+    return json.dumps(obj, allow_nan=False, ensure_ascii=False)
+
+
+def write_text(path: Path, text: str) -> None:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    with open(path, "w", encoding="utf-8", newline="\n") as f:
+        f.write(text)
+
+
+def write_json(path: Path, obj) -> None:
+    write_text(path, format_json(obj) + "\n")
+
+
+def round_half_away(x: float) -> int:
+    """r(x) = sign(x) * floor(|x| + 0.5)."""
+    return int(math.copysign(math.floor(abs(x) + 0.5), x))
+
+
+def versions() -> dict:
+    return {"numpy": np.__version__, "scipy": scipy.__version__,
+            "statsmodels": statsmodels.__version__, "pandas": pd.__version__}
+
+
+def pinned_versions() -> dict:
+    pins = {}
+    for line in (HERE / "requirements.txt").read_text(encoding="utf-8").splitlines():
+        line = line.split("#", 1)[0].strip()
+        if "==" in line:
+            name, version = line.split("==", 1)
+            pins[name.strip()] = version.strip()
+    return pins
+
+
+# --------------------------------------------------------------------------- Longley
+
+def longley_frame() -> pd.DataFrame:
+    data = sm.datasets.longley.load_pandas().data
+    check(list(data.columns) == LONGLEY_COLUMNS, f"unexpected Longley columns {list(data.columns)}")
+    check(data.shape == (16, 7), f"unexpected Longley shape {data.shape}")
+    return data.astype(float)
+
+
+def longley_csv_text(data: pd.DataFrame) -> str:
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(LONGLEY_COLUMNS)
+    for row in data[LONGLEY_COLUMNS].itertuples(index=False):
+        writer.writerow([repr(float(v)) for v in row])
+    return buf.getvalue()
+
+
+def longley_references(out: Path) -> list[str]:
+    data = longley_frame()
+    text = longley_csv_text(data)
+    # the written file reproduces the data exactly
+    back = pd.read_csv(io.StringIO(text))
+    check(np.array_equal(back[LONGLEY_COLUMNS].to_numpy(), data[LONGLEY_COLUMNS].to_numpy()),
+          "longley.csv does not round-trip")
+    write_text(out / "longley.csv", text)
+
+    # VIFs: statsmodels variance_inflation_factor on exog = add_constant(predictors),
+    # standardize=False passed explicitly (its default changed in statsmodels 0.15.0).
+    exog = sm.add_constant(data[LONGLEY_PREDICTORS], prepend=True)
+    check(list(exog.columns) == ["const"] + LONGLEY_PREDICTORS, "add_constant did not prepend 'const'")
+    exog_values = exog.to_numpy()
+    with warnings.catch_warnings():
+        # statsmodels warns that the raw design is poorly conditioned (cond ~ 4.9e9);
+        # that is the point of this data set, and the values are checked below
+        warnings.filterwarnings("ignore", message="The design matrix is poorly conditioned")
+        vif = [variance_inflation_factor(exog_values, i, standardize=False)
+               for i in range(1, exog_values.shape[1])]
+    err = max_rel_err(vif, LONGLEY_VIF_EXACT)
+    check(err < 1e-8, f"Longley VIFs differ from the exact values by {err:.3g} relative")
+    err = max_abs_err(vif, LONGLEY_VIF_FARAWAY_2002)
+    check(err <= 5e-5, f"Longley VIFs differ from Faraway (2002) by {err:.3g}")
+    # independent route: diagonal of the inverse correlation matrix
+    corr = np.corrcoef(data[LONGLEY_PREDICTORS].to_numpy(), rowvar=False)
+    err = max_rel_err(np.diag(np.linalg.inv(corr)), vif)
+    check(err < 1e-10, f"Longley VIFs: statsmodels vs inverse correlation matrix {err:.3g}")
+
+    # Belsley-Kuh-Welsch (1980): intercept kept, columns scaled to unit Euclidean
+    # length (not centred), numpy SVD.
+    scaled = exog_values / np.linalg.norm(exog_values, axis=0)
+    _, mu, vt = np.linalg.svd(scaled, full_matrices=False)
+    v = vt.T                                   # v[j, k]: variable j, dimension k
+    phi = v ** 2 / mu ** 2                     # phi[j, k] = v_jk^2 / mu_k^2
+    proportions = (phi / phi.sum(axis=1, keepdims=True)).T   # [dimension k][variable j]
+    condition_indices = mu[0] / mu
+    check(np.all(np.diff(mu) <= 0), "singular values are not in decreasing order")
+    err = max_rel_err(mu, BKW_LONGLEY_SINGULAR_VALUES)
+    check(err < 1e-8, f"BKW singular values differ from the 60-digit values by {err:.3g}")
+    err = max_rel_err(condition_indices, BKW_LONGLEY_CONDITION_INDICES)
+    check(err < 1e-8, f"BKW condition indices differ from the 60-digit values by {err:.3g}")
+    err = max_abs_err(proportions, BKW_LONGLEY_PROPORTIONS)
+    check(err < 1e-9, f"BKW proportions differ from the 60-digit values by {err:.3g}")
+    check(np.allclose(proportions.sum(axis=0), 1.0, rtol=0, atol=1e-12),
+          "BKW proportions of a variable do not sum to 1")
+
+    ver = versions()
+    write_json(out / "longley_vif.json", {
+        "source": (f"statsmodels {ver['statsmodels']} (numpy {ver['numpy']}, pandas {ver['pandas']}), "
+                   "function statsmodels.stats.outliers_influence.variance_inflation_factor"
+                   "(exog, i, standardize=False), standardize=False passed explicitly, "
+                   "exog = statsmodels.api.add_constant(predictors) with the constant as column 0, "
+                   "i = 1..6; data statsmodels.datasets.longley (Longley 1967), as in longley.csv. "
+                   "Agrees with exact rational values to < 1e-8 relative and with the values printed "
+                   "by Faraway (2002, ch. 9) to all 4 printed decimals."),
+        "model": "TOTEMP ~ const + GNPDEFL + GNP + UNEMP + ARMED + POP + YEAR",
+        "predictors": LONGLEY_PREDICTORS,
+        "vif": floats(vif),
+        "bkw": {
+            "source": (f"numpy {ver['numpy']} numpy.linalg.svd; Belsley, Kuh & Welsch (1980) procedure: "
+                       "design with the intercept column, not centred, every column scaled to unit "
+                       "Euclidean length; condition index = mu_max / mu_k; "
+                       "proportions[k][j] = (v_jk^2 / mu_k^2) / sum_k (v_jk^2 / mu_k^2). "
+                       "Agrees with a 60-digit computation to < 1e-8 relative (singular values, "
+                       "condition indices) and < 1e-9 absolute (proportions)."),
+            "columns": ["const"] + LONGLEY_PREDICTORS,
+            "singular_values": floats(mu),
+            "eigenvalues": floats(mu ** 2),
+            "condition_indices": floats(condition_indices),
+            "proportions": matrix(proportions),
+        },
+    })
+    return ["longley.csv", "longley_vif.json"]
+
+
+# --------------------------------------------------------------------------- response
+
+def gamma_pdf(t, shape):
+    return scipy.stats.gamma.pdf(t, shape)
+
+
+def hrf(t):
+    """h(t) = g(t; 6, 1) - g(t; 16, 1) / 6, g the gamma density (shape, scale 1)."""
+    t = np.asarray(t, float)
+    return gamma_pdf(t, 6) - gamma_pdf(t, 16) / 6.0
+
+
+def gamma_pdf_derivative(t, shape):
+    """g'(t; a) = g(t; a) * ((a - 1) / t - 1), and 0 at t = 0 (a > 2)."""
+    t = np.asarray(t, float)
+    safe = np.where(t > 0, t, 1.0)
+    return np.where(t > 0, gamma_pdf(t, shape) * ((shape - 1.0) / safe - 1.0), 0.0)
+
+
+def hrf_derivative(t):
+    return gamma_pdf_derivative(t, 6) - gamma_pdf_derivative(t, 16) / 6.0
+
+
+def hrf_references(out: Path) -> list[str]:
+    unit_t = np.arange(0, 33, dtype=float)
+    unit_h = hrf(unit_t)
+    unit_dh = hrf_derivative(unit_t)
+
+    err = max_abs_err(unit_h, HRF_UNIT_GRID_NOTES)
+    check(err < 1e-14, f"h on the 1 s grid differs from the research notes by {err:.3g}")
+    # closed form for unit scale: t^5 e^-t / 5! - t^15 e^-t / (6 * 15!)
+    closed = unit_t ** 5 * np.exp(-unit_t) / 120.0 - unit_t ** 15 * np.exp(-unit_t) / (6.0 * math.factorial(15))
+    err = max_abs_err(unit_h, closed)
+    check(err < 1e-14, f"h differs from its closed form by {err:.3g}")
+    # analytic derivative against a central finite difference
+    step = 1e-5
+    central = (hrf(unit_t + step) - hrf(unit_t - step)) / (2.0 * step)
+    err = max_abs_err(unit_dh, central)
+    check(err < 1e-8, f"dh/dt differs from the central finite difference by {err:.3g}")
+
+    dt = 0.125
+    micro_i = np.arange(0, 256)
+    micro_t = micro_i * dt
+    micro_h = hrf(micro_t)
+    check(len(micro_t) == math.ceil(HRF_LENGTH / dt), "microtime grid length")
+
+    ver = versions()
+    write_json(out / "hrf.json", {
+        "source": (f"scipy {ver['scipy']} scipy.stats.gamma.pdf (shape a, scale 1): "
+                   "h(t) = gamma.pdf(t, 6) - gamma.pdf(t, 16) / 6, unnormalised; "
+                   "dh_dt from g'(t; a) = g(t; a) * ((a - 1) / t - 1) (0 at t = 0), checked against a "
+                   "central finite difference (step 1e-5 s) to < 1e-8 and h against the closed form "
+                   "t^5 e^-t / 5! - t^15 e^-t / (6 * 15!) to < 1e-14."),
+        "unit_grid": {
+            "t": floats(unit_t),
+            "h": floats(unit_h),
+            "dh_dt": floats(unit_dh),
+            "sum_h": float(unit_h.sum()),
+        },
+        "microtime_grid": {
+            "dt": dt,
+            "t": floats(micro_t),
+            "h": floats(micro_h),
+            "sum_h": float(micro_h.sum()),
+            "h_over_sum": floats(micro_h / micro_h.sum()),
+        },
+    })
+    return ["hrf.json"]
+
+
+# --------------------------------------------------------------------------- design fixture
+
+def draw_trials_text() -> str:
+    """The fixture's trial table, drawn once from numpy default_rng(7) and written as
+    literal decimals (4 decimals). The committed file is the source of truth afterwards."""
+    rng = np.random.default_rng(7)
+    n = 18
+    gaps = rng.uniform(9.0, 10.0, n - 1)
+    cue = np.round(-1.0 + np.concatenate([[0.0], np.cumsum(gaps)]), 4)
+    outcome = np.round(cue + rng.uniform(2.0, 6.0, n), 4)
+    duration = np.round(rng.uniform(0.5, 1.5, n), 4)
+    a_value = np.round(rng.uniform(0.0, 1.0, n), 4)
+    a_pe = rng.normal(0.0, 0.5, n)
+    # b_pe = 0.8 a_pe + 0.6 noise, the noise made exactly uncorrelated with a_pe in this
+    # sample and given the same spread, so the sample correlation is 0.8 before rounding
+    centred = a_pe - a_pe.mean()
+    noise = rng.normal(0.0, 0.5, n)
+    noise = noise - noise.mean()
+    noise = noise - (noise @ centred) / (centred @ centred) * centred
+    noise = noise * np.linalg.norm(centred) / np.linalg.norm(noise)
+    b_pe = np.round(0.8 * a_pe + 0.6 * noise, 4)
+    a_pe = np.round(a_pe, 4)
+    missing_a_value = 6  # one missing modulator value
+
+    def dec(x: float) -> str:
+        s = f"{x:.4f}"
+        return "0.0000" if s == "-0.0000" else s
+
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow(TRIAL_COLUMNS)
+    for i in range(n):
+        writer.writerow(["01", "1", dec(cue[i]), dec(outcome[i]), dec(duration[i]),
+                         "n/a" if i == missing_a_value else dec(a_value[i]),
+                         dec(a_pe[i]), dec(b_pe[i])])
+    return buf.getvalue()
+
+
+def read_trials(path: Path) -> list[dict]:
+    with open(path, newline="", encoding="utf-8") as f:
+        reader = csv.DictReader(f)
+        check(reader.fieldnames == TRIAL_COLUMNS, f"{path.name}: unexpected columns {reader.fieldnames}")
+        rows = []
+        for row in reader:
+            parsed = {"subject": row["subject"], "run": row["run"]}
+            for col in TRIAL_COLUMNS[2:]:
+                cell = row[col].strip()
+                parsed[col] = None if cell in MISSING else float(cell)
+            rows.append(parsed)
+    check(len({(r["subject"], r["run"]) for r in rows}) == 1, "the fixture holds one run")
+    return rows
+
+
+def build_design(trials: list[dict]) -> dict:
+    """Dense numpy build of the design the study conventions imply."""
+    tr, scans, microtime = FIXTURE["tr"], FIXTURE["scans"], FIXTURE["microtime"]
+    reference, high_pass = FIXTURE["reference"], FIXTURE["high_pass"]
+    dt = tr / microtime
+
+    # kernel: h(i dt), i = 0 .. ceil(32/dt) - 1, divided by its sum
+    kernel_len = math.ceil(HRF_LENGTH / dt)
+    kernel = hrf(np.arange(kernel_len) * dt)
+    kernel = kernel / kernel.sum()
+
+    # dense neural grid covering bins [first_bin, end_bin)
+    first_bin = -round_half_away(HRF_LENGTH / dt)
+    end_bin = scans * microtime + 2 * kernel_len
+    grid_len = end_bin - first_bin
+
+    # microtime bins covered by each event of each trial
+    event_bins = {}
+    for event, (onset_col, duration_col) in FIXTURE["events"].items():
+        bins = []
+        for row in trials:
+            onset = row[onset_col]
+            duration = 0.0 if duration_col is None else row[duration_col]
+            check(onset is not None and duration is not None, f"missing {event} timing")
+            for edge in (onset / dt, (onset + duration) / dt):
+                # no bin edge lies near a rounding tie, so the bins do not depend on how
+                # (onset + duration) / dt is evaluated in floating point
+                check(abs(abs(edge - math.trunc(edge)) - 0.5) > 1e-6, f"{event}: edge {edge} near a tie")
+            b0 = round_half_away(onset / dt)
+            b1 = max(round_half_away((onset + duration) / dt), b0 + 1)
+            bins.append([b0, b1])
+        event_bins[event] = bins
+
+    names, heights, sampled = [], {}, []
+    sample_bins = np.array([round_half_away(reference * microtime) + k * microtime for k in range(scans)])
+    for name, event, column in FIXTURE["regressors"]:
+        if column is None:
+            h = [1.0] * len(trials)
+        else:
+            present = [row[column] for row in trials if row[column] is not None]
+            mean = float(np.mean(present))
+            h = [0.0 if row[column] is None else row[column] - mean for row in trials]
+        neural = np.zeros(grid_len)
+        for (b0, b1), height in zip(event_bins[event], h):
+            lo, hi = max(b0, first_bin), min(b1, end_bin)
+            if lo < hi:
+                neural[lo - first_bin:hi - first_bin] += height
+        response = np.convolve(neural, kernel)[:grid_len]     # truncated, causal
+        sampled.append(response[sample_bins - first_bin])
+        names.append(name)
+        heights[name] = h
+    x = np.column_stack(sampled)                               # scans x regressors
+
+    # drift: constant + cos(pi k (2n+1) / (2N)), k = 1..K, projected out by least squares
+    n_cos = math.floor(2 * scans * tr / high_pass) if high_pass > 0 else 0
+    n = np.arange(scans)
+    drift = np.column_stack([np.ones(scans)] +
+                            [np.cos(np.pi * k * (2 * n + 1) / (2 * scans)) for k in range(1, n_cos + 1)])
+    coef, *_ = np.linalg.lstsq(drift, x, rcond=None)
+    filtered = x - drift @ coef
+    scale = np.abs(x).max(axis=0)
+    check(np.all(np.abs(filtered.mean(axis=0)) < 1e-12 * scale), "filtered columns are not centred")
+
+    corr = np.corrcoef(filtered, rowvar=False)
+    norms = np.linalg.norm(filtered, axis=0)
+    cosine = (filtered.T @ filtered) / np.outer(norms, norms)
+    check(max_abs_err(corr, cosine) < 1e-12, "corrcoef and cosine similarity disagree")
+
+    p = filtered.shape[1]
+    vif, vif_with_const = [], []
+    for j in range(p):
+        y = filtered[:, j]
+        others = np.delete(filtered, j, axis=1)
+        b, *_ = np.linalg.lstsq(others, y, rcond=None)
+        resid = y - others @ b
+        r2 = 1.0 - (resid @ resid) / (y @ y)
+        vif.append(1.0 / (1.0 - r2))
+        with_const = np.column_stack([np.ones(scans), others])
+        b, *_ = np.linalg.lstsq(with_const, y, rcond=None)
+        resid = y - with_const @ b
+        yc = y - y.mean()
+        vif_with_const.append(1.0 / ((resid @ resid) / (yc @ yc)))
+    err = max_rel_err(vif_with_const, vif)
+    check(err < 1e-10, f"adding a constant to the VIF regressions changed the VIFs by {err:.3g}")
+    err = max_rel_err(np.diag(np.linalg.inv(corr)), vif)
+    check(err < 1e-9, f"VIF: lstsq route vs inverse correlation matrix {err:.3g}")
+
+    return {
+        "names": names, "heights": heights, "event_bins": event_bins, "sampled": x.T,
+        "filtered": filtered.T, "correlation": corr, "vif": vif,
+        "settings": {
+            "tr": tr, "scans": scans, "microtime": microtime, "reference": reference,
+            "high_pass": high_pass, "dt": dt, "kernel_samples": kernel_len,
+            "kernel_sum_before_normalising": float(hrf(np.arange(kernel_len) * dt).sum()),
+            "grid_first_bin": first_bin, "grid_end_bin": end_bin,
+            "first_sample_bin": int(sample_bins[0]), "sample_bin_step": microtime,
+            "drift_cosines": n_cos,
+        },
+    }
+
+
+def fixture_references(out: Path) -> list[str]:
+    folder = out / "design_fixture"
+    write_text(folder / "study.toml", STUDY_TOML)
+    trials = read_trials(folder / "trials.csv")
+    design = build_design(trials)
+    ver = versions()
+    write_json(folder / "expected.json", {
+        "source": "numpy build following DESIGN.md conventions",
+        "computed_with": f"numpy {ver['numpy']}, scipy {ver['scipy']} (scipy.stats.gamma.pdf for the kernel)",
+        "method": ("trials.csv read back; dense neural signal on the microtime grid "
+                   "(bins grid_first_bin .. grid_end_bin - 1), bins [r(o/dt), max(r((o+d)/dt), r(o/dt)+1)) "
+                   "with r = round half away from zero; onset height 1, modulator height = value minus the "
+                   "mean of the values present (missing: height 0); numpy.convolve with h(i dt), "
+                   "i = 0..255, divided by its sum, truncated; scan k sampled at bin 8 + 16 k; filtered = "
+                   "residual of numpy.linalg.lstsq onto [1, cos(pi k (2n+1) / (2N)), k = 1..K]; correlation "
+                   "= numpy.corrcoef of the filtered columns; vif_j = 1 / (1 - R2_j), R2_j from "
+                   "numpy.linalg.lstsq of filtered column j on the other filtered columns."),
+        "settings": design["settings"],
+        "regressors": design["names"],
+        "heights": {name: floats(h) for name, h in design["heights"].items()},
+        "event_bins": design["event_bins"],
+        "sampled": matrix(design["sampled"]),
+        "filtered": matrix(design["filtered"]),
+        "correlation": matrix(design["correlation"]),
+        "vif": floats(design["vif"]),
+    })
+    return ["design_fixture/study.toml", "design_fixture/expected.json"]
+
+
+# --------------------------------------------------------------------------- write / check
+
+def generate(out: Path) -> list[str]:
+    files = []
+    files += longley_references(out)
+    files += hrf_references(out)
+    files += fixture_references(out)
+    return files
+
+
+def is_number(x) -> bool:
+    return isinstance(x, (int, float)) and not isinstance(x, bool)
+
+
+def numbers_agree(a: float, b: float) -> bool:
+    return abs(a - b) <= TOLERANCE + TOLERANCE * abs(b)
+
+
+def compare_json(committed, fresh, where: str, diffs: list) -> None:
+    if isinstance(committed, dict) and isinstance(fresh, dict):
+        if list(committed) != list(fresh):
+            diffs.append(f"{where or '(top)'}: keys {list(committed)} vs regenerated {list(fresh)}")
+            return
+        for key in committed:
+            compare_json(committed[key], fresh[key], f"{where}.{key}" if where else key, diffs)
+    elif isinstance(committed, list) and isinstance(fresh, list):
+        if len(committed) != len(fresh):
+            diffs.append(f"{where}: length {len(committed)} vs regenerated {len(fresh)}")
+            return
+        for i, (a, b) in enumerate(zip(committed, fresh)):
+            compare_json(a, b, f"{where}[{i}]", diffs)
+    elif is_number(committed) and is_number(fresh):
+        if not numbers_agree(committed, fresh):
+            diffs.append(f"{where}: committed {committed!r} vs regenerated {fresh!r}")
+    elif type(committed) is not type(fresh) or committed != fresh:
+        diffs.append(f"{where}: committed {committed!r} vs regenerated {fresh!r}")
+
+
+def as_float(cell: str):
+    try:
+        return float(cell)
+    except ValueError:
+        return None
+
+
+def compare_csv(committed: str, fresh: str, diffs: list) -> None:
+    a = list(csv.reader(io.StringIO(committed)))
+    b = list(csv.reader(io.StringIO(fresh)))
+    if len(a) != len(b):
+        diffs.append(f"{len(a)} rows vs regenerated {len(b)}")
+        return
+    for r, (ra, rb) in enumerate(zip(a, b), start=1):
+        if len(ra) != len(rb):
+            diffs.append(f"line {r}: {len(ra)} cells vs regenerated {len(rb)}")
+            continue
+        for c, (x, y) in enumerate(zip(ra, rb)):
+            column = a[0][c] if c < len(a[0]) else str(c + 1)
+            fx, fy = as_float(x), as_float(y)
+            same = numbers_agree(fx, fy) if (fx is not None and fy is not None) else x == y
+            if not same:
+                diffs.append(f"line {r}, column {column}: committed {x!r} vs regenerated {y!r}")
+
+
+def compare_file(name: str, committed_path: Path, fresh_path: Path) -> list[str]:
+    if not committed_path.exists():
+        return [f"{name}: missing (run make_references.py to write it)"]
+    committed = committed_path.read_text(encoding="utf-8")
+    fresh = fresh_path.read_text(encoding="utf-8")
+    diffs: list[str] = []
+    if name.endswith(".json"):
+        try:
+            compare_json(json.loads(committed), json.loads(fresh), "", diffs)
+        except json.JSONDecodeError as e:
+            diffs.append(f"not valid JSON ({e})")
+    elif name.endswith(".csv"):
+        compare_csv(committed, fresh, diffs)
+    elif committed != fresh:
+        a, b = committed.splitlines(), fresh.splitlines()
+        line = next((i for i, (x, y) in enumerate(zip(a, b)) if x != y), min(len(a), len(b)))
+        diffs.append(f"text differs from line {line + 1}")
+    return [f"{name}: {d}" for d in diffs]
+
+
+def warn_on_versions() -> None:
+    pins, have = pinned_versions(), versions()
+    for name, pinned in pins.items():
+        if have.get(name) != pinned:
+            print(f"warning: {name} {have.get(name)} installed, requirements.txt pins {pinned}",
+                  file=sys.stderr)
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    parser.add_argument("--check", action="store_true",
+                        help="regenerate into a temporary folder and compare with the committed files")
+    parser.add_argument("--new-trials", action="store_true",
+                        help="redraw design_fixture/trials.csv from default_rng(7) (it is otherwise kept)")
+    args = parser.parse_args()
+    warn_on_versions()
+    trials_name = "design_fixture/trials.csv"
+    committed_trials = HERE / trials_name
+
+    if args.check:
+        if not committed_trials.exists():
+            print(f"make_references.py --check: {trials_name} is missing", file=sys.stderr)
+            return 1
+        with tempfile.TemporaryDirectory() as tmp:
+            out = Path(tmp)
+            (out / "design_fixture").mkdir()
+            shutil.copyfile(committed_trials, out / trials_name)   # input, used as committed
+            files = generate(out)
+            diffs = []
+            for name in files:
+                diffs += compare_file(name, HERE / name, out / name)
+        if committed_trials.read_text(encoding="utf-8") != draw_trials_text():
+            print(f"note: {trials_name} is not what default_rng(7) draws with numpy {np.__version__}; "
+                  "the committed file stays the source of truth", file=sys.stderr)
+        if diffs:
+            print(f"make_references.py --check: reference files differ from a fresh build "
+                  f"(tolerance {TOLERANCE:g} relative and absolute):", file=sys.stderr)
+            for d in diffs[:50]:
+                print(f"  {d}", file=sys.stderr)
+            if len(diffs) > 50:
+                print(f"  ... and {len(diffs) - 50} more", file=sys.stderr)
+            print("run `python3 tests/reference/make_references.py` to rewrite them", file=sys.stderr)
+            return 1
+        print(f"reference files up to date: {len(files)} files")
+        return 0
+
+    if args.new_trials or not committed_trials.exists():
+        write_text(committed_trials, draw_trials_text())
+        print(f"wrote {trials_name}")
+    for name in generate(HERE):
+        print(f"wrote {name}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
