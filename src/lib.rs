@@ -6,11 +6,18 @@
 //! run; → [`design::Design`] (the filtered design matrix) → [`diagnose::Diagnostics`]
 //! → [`screen`] flags and statuses → [`report`] renderers.
 
+pub mod check;
+pub mod cli;
+pub mod demo;
 pub mod design;
+pub mod diagnose;
 pub mod error;
 pub mod files;
 pub mod flags;
 pub mod forecast;
+pub mod output;
+pub mod report;
+pub mod screen;
 pub mod study;
 pub mod trials;
 

@@ -1,1 +1,60 @@
-fn main() {}
+//! The `tangle` binary: parses arguments, calls the library, maps errors to exit codes
+//! (0 done · 1 bad input or usage · 2 internal error · 3 a `--fail-on` status reached).
+
+use std::process::ExitCode;
+
+use clap::Parser;
+use tangle::check::{CheckOptions, check_file};
+use tangle::cli::{Cli, Command, FailOn, Format, OutputArgs};
+use tangle::error::Error;
+use tangle::files::DiskFiles;
+use tangle::report::{self, Report};
+use tangle::screen::Status;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let (result, output) = match &cli.command {
+        Command::Check { study, output } => {
+            (check_file(&DiskFiles, study, options(output)), output)
+        }
+        Command::Demo { output } => (tangle::demo::check_demo(options(output)), output),
+    };
+    match result.and_then(|report| deliver(&report, output)) {
+        Ok(code) => code,
+        Err(err) => {
+            eprintln!("tangle: {err}");
+            ExitCode::from(match err {
+                Error::Internal(_) => 2,
+                _ => 1,
+            })
+        }
+    }
+}
+
+fn options(output: &OutputArgs) -> CheckOptions {
+    CheckOptions {
+        centre: !output.no_centring,
+    }
+}
+
+fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
+    let text = match output.format {
+        Format::Table => report::table::render(report),
+        Format::Tsv => report::tsv::render(report),
+        Format::Json => report::json::render(report),
+    };
+    match &output.out {
+        Some(path) => tangle::output::write_atomically(path, &text)?,
+        None => print!("{text}"),
+    }
+    let limit = output.fail_on.map(|level| match level {
+        FailOn::Caution => Status::Caution,
+        FailOn::Severe => Status::Severe,
+    });
+    let reached = limit.is_some_and(|limit| report.subjects.iter().any(|s| s.status >= limit));
+    Ok(if reached {
+        ExitCode::from(3)
+    } else {
+        ExitCode::SUCCESS
+    })
+}

@@ -61,7 +61,12 @@ pub fn build_design(
     run: &RunTrials,
     nuisance: Option<&NuisanceTable>,
 ) -> Result<Design, Error> {
-    let grid = Grid::new(settings.tr, run.scans, settings.microtime, settings.reference);
+    let grid = Grid::new(
+        settings.tr,
+        run.scans,
+        settings.microtime,
+        settings.reference,
+    );
     let run_end = run.scans as f64 * settings.tr;
     let mut flags = Vec::new();
 
@@ -83,7 +88,10 @@ pub fn build_design(
                 Severity::Severe,
                 "event_absent",
                 vec![event.name.clone()],
-                format!("event \"{}\" has no trials in this run; its regressors are left out", event.name),
+                format!(
+                    "event \"{}\" has no trials in this run; its regressors are left out",
+                    event.name
+                ),
             ));
         }
         pending.push(Pending {
@@ -95,17 +103,29 @@ pub fn build_design(
                 column: None,
             },
             event: index,
-            heights: kept[index].iter().map(|&k| if k { 1.0 } else { 0.0 }).collect(),
+            heights: kept[index]
+                .iter()
+                .map(|&k| if k { 1.0 } else { 0.0 })
+                .collect(),
             included: trials > 0,
         });
     }
     let mut trial_values = Vec::new();
     for model in &settings.models {
         for spec in &model.modulators {
-            let Some((index, event)) = run.events.iter().enumerate().find(|(_, e)| e.name == spec.event) else {
+            let Some((index, event)) = run
+                .events
+                .iter()
+                .enumerate()
+                .find(|(_, e)| e.name == spec.event)
+            else {
                 continue;
             };
-            let Some(values) = event.modulators.iter().find(|m| m.model == model.name && m.column == spec.column) else {
+            let Some(values) = event
+                .modulators
+                .iter()
+                .find(|m| m.model == model.name && m.column == spec.column)
+            else {
                 continue;
             };
             let name = modulator_name(model, &spec.column, &spec.event);
@@ -141,13 +161,22 @@ pub fn build_design(
     let mut regressors = Vec::new();
     let mut sampled_columns = Vec::new();
     let mut included = Vec::new();
-    for (kernel, derivative) in [(&settings.response, false), (&settings.response_derivative, true)] {
+    for (kernel, derivative) in [
+        (&settings.response, false),
+        (&settings.response_derivative, true),
+    ] {
         if derivative && !settings.derivative {
             continue;
         }
         for item in &pending {
             let event = &run.events[item.event];
-            let column = event_regressor(&grid, kernel, &event.onsets, &event.durations, &item.heights);
+            let column = event_regressor(
+                &grid,
+                kernel,
+                &event.onsets,
+                &event.durations,
+                &item.heights,
+            );
             let mut regressor = item.regressor.clone();
             if derivative {
                 regressor.name = format!("{}:deriv", regressor.name);
@@ -162,7 +191,11 @@ pub fn build_design(
         for (name, column) in table.names.iter().zip(&table.columns) {
             let taken = regressors.iter().any(|r: &Regressor| &r.name == name);
             regressors.push(Regressor {
-                name: if taken { format!("nuisance:{name}") } else { name.clone() },
+                name: if taken {
+                    format!("nuisance:{name}")
+                } else {
+                    name.clone()
+                },
                 kind: RegressorKind::Nuisance,
                 event: None,
                 model: None,
@@ -190,7 +223,10 @@ pub fn build_design(
         .with_hint("check the scan count, or use fewer regressors")
         .into());
     }
-    let filtered = sampled_columns.iter().map(|c| drift.residualise(c)).collect();
+    let filtered = sampled_columns
+        .iter()
+        .map(|c| drift.residualise(c))
+        .collect();
     Ok(Design {
         subject: run.subject.clone(),
         run: run.run.clone(),
@@ -206,7 +242,12 @@ pub fn build_design(
 }
 
 fn modulator_name(model: &ModelSpec, column: &str, event: &str) -> String {
-    let same_column_twice = model.modulators.iter().filter(|m| m.column == column).count() > 1;
+    let same_column_twice = model
+        .modulators
+        .iter()
+        .filter(|m| m.column == column)
+        .count()
+        > 1;
     if same_column_twice {
         format!("{}:{column}@{event}", model.name)
     } else {
@@ -241,7 +282,13 @@ fn modulator_heights(values: &[Option<f64>], kept: &[bool], centre: bool) -> Vec
 }
 
 fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Vec<Flag>) {
-    let late: Vec<usize> = event.lines.iter().zip(kept).filter(|(_, k)| !**k).map(|(l, _)| *l).collect();
+    let late: Vec<usize> = event
+        .lines
+        .iter()
+        .zip(kept)
+        .filter(|(_, k)| !**k)
+        .map(|(l, _)| *l)
+        .collect();
     if !late.is_empty() {
         flags.push(Flag::new(
             Severity::Caution,
@@ -269,12 +316,21 @@ fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Ve
             Severity::Note,
             "missing_duration",
             vec![event.name.clone()],
-            format!("{} trial(s) of \"{}\" have no duration and are modelled as impulses (0 s)", event.missing_durations, event.name),
+            format!(
+                "{} trial(s) of \"{}\" have no duration and are modelled as impulses (0 s)",
+                event.missing_durations, event.name
+            ),
         ));
     }
 }
 
-fn modulator_flags(name: &str, event: &EventTrials, values: &[Option<f64>], heights: &[f64], flags: &mut Vec<Flag>) {
+fn modulator_flags(
+    name: &str,
+    event: &EventTrials,
+    values: &[Option<f64>],
+    heights: &[f64],
+    flags: &mut Vec<Flag>,
+) {
     let present = values.iter().filter(|v| v.is_some()).count();
     let missing = values.len() - present;
     if missing > 0 && present > 0 {

@@ -67,7 +67,9 @@ mod tests {
         // N = 6, TR = 2, cutoff = 10 → K = 2 (shared/research/fmri-domain.md §3, [calc]).
         let basis = DriftBasis::new(6, 2.0, 10.0);
         assert_eq!(basis.len(), 3);
-        let expected = [0.557678, 0.408248, 0.149429, -0.149429, -0.408248, -0.557678];
+        let expected = [
+            0.557678, 0.408248, 0.149429, -0.149429, -0.408248, -0.557678,
+        ];
         for (got, want) in basis.columns[1].iter().zip(expected) {
             assert_abs_diff_eq!(*got, want, epsilon = 1e-6);
         }
@@ -80,7 +82,13 @@ mod tests {
     #[test]
     fn column_counts_follow_the_cutoff_rule() {
         // Table of fmri-domain.md §3: (scans, TR) → K at 128 s.
-        for (scans, tr, k) in [(240, 2.0, 7), (300, 2.0, 9), (400, 1.5, 9), (180, 2.5, 7), (1000, 0.72, 11)] {
+        for (scans, tr, k) in [
+            (240, 2.0, 7),
+            (300, 2.0, 9),
+            (400, 1.5, 9),
+            (180, 2.5, 7),
+            (1000, 0.72, 11),
+        ] {
             assert_eq!(cosine_count(scans, tr, 128.0), k);
         }
         assert_eq!(cosine_count(300, 2.0, 0.0), 0);
@@ -89,7 +97,9 @@ mod tests {
     #[test]
     fn residuals_are_orthogonal_to_the_basis() {
         let basis = DriftBasis::new(50, 2.0, 40.0);
-        let x: Vec<f64> = (0..50).map(|i| (i as f64 * 0.37).sin() + i as f64 * 0.1).collect();
+        let x: Vec<f64> = (0..50)
+            .map(|i| (i as f64 * 0.37).sin() + i as f64 * 0.1)
+            .collect();
         let r = basis.residualise(&x);
         for column in &basis.columns {
             let dot: f64 = column.iter().zip(&r).map(|(a, b)| a * b).sum();

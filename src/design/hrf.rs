@@ -100,7 +100,8 @@ mod tests {
         // Closed form with unit dispersion: t^5 e^-t / 5! − t^15 e^-t / (6 · 15!)
         // (shared/research/fmri-domain.md §1.1, [calc]); peak near 5 s.
         let t: f64 = 5.0;
-        let closed = t.powi(5) * (-t).exp() / 120.0 - t.powi(15) * (-t).exp() / (6.0 * 1_307_674_368_000.0);
+        let closed =
+            t.powi(5) * (-t).exp() / 120.0 - t.powi(15) * (-t).exp() / (6.0 * 1_307_674_368_000.0);
         assert_relative_eq!(canonical(t), closed, max_relative = 1e-12);
         assert_relative_eq!(canonical(5.0), 0.175441162, max_relative = 1e-8);
         assert_eq!(canonical(0.0), 0.0);

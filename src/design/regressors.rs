@@ -70,7 +70,7 @@ pub fn event_regressor(
         // Scans whose sample bin m satisfies first ≤ m < end − 1 + reach.
         let mt = grid.microtime as i64;
         let from = (first - grid.first_sample).div_euclid(mt).max(0);
-        for scan in from as usize..grid.scans {
+        for (scan, value) in column.iter_mut().enumerate().skip(from as usize) {
             let m = grid.sample_bin(scan);
             if m >= end - 1 + reach {
                 break;
@@ -78,7 +78,7 @@ pub fn event_regressor(
             if m < first {
                 continue;
             }
-            column[scan] += height * (kernel.sum_through(m - first) - kernel.sum_through(m - end));
+            *value += height * (kernel.sum_through(m - first) - kernel.sum_through(m - end));
         }
     }
     column
@@ -99,7 +99,12 @@ mod tests {
         let column = event_regressor(&grid, &kernel, &[0.0], &[0.0], &[1.0]);
         let raw_total: f64 = (0..512).map(|i| canonical(i as f64 / 16.0)).sum();
         for (k, value) in column.iter().enumerate().take(32) {
-            assert_relative_eq!(*value, canonical(k as f64) / raw_total, max_relative = 1e-12, epsilon = 1e-15);
+            assert_relative_eq!(
+                *value,
+                canonical(k as f64) / raw_total,
+                max_relative = 1e-12,
+                epsilon = 1e-15
+            );
         }
         assert_eq!(column[33], 0.0);
     }

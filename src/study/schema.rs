@@ -35,7 +35,10 @@ pub fn closest<'a>(key: &str, valid: &[&'a str]) -> Option<&'a str> {
     valid
         .iter()
         .map(|candidate| (strsim::jaro_winkler(key, candidate), *candidate))
-        .filter(|(score, _)| *score >= 0.75)
+        // Short names score low on Jaro–Winkler; one edit away is close enough for them.
+        .filter(|(score, candidate)| {
+            *score >= 0.75 || strsim::damerau_levenshtein(key, candidate) <= 1
+        })
         .max_by(|a, b| a.0.total_cmp(&b.0))
         .map(|(_, candidate)| candidate)
 }
@@ -50,5 +53,6 @@ mod tests {
         assert_eq!(closest("scan", keys_of("acquisition")), Some("scans"));
         assert_eq!(closest("modulator", keys_of("model")), Some("modulators"));
         assert_eq!(closest("zzzz", keys_of("model")), None);
+        assert_eq!(closest("p_e", &["pe", "value"]), Some("pe"));
     }
 }

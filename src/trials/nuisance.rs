@@ -40,7 +40,13 @@ pub fn read_nuisance(
         return Err(Error::Input(problems));
     }
     if table.rows.len() != scans {
-        return Err(wrong_row_count(&path, table.rows.len(), scans, subject, run));
+        return Err(wrong_row_count(
+            &path,
+            table.rows.len(),
+            scans,
+            subject,
+            run,
+        ));
     }
     let mut columns = vec![Vec::with_capacity(scans); names.len()];
     for row in &table.rows {
@@ -64,7 +70,9 @@ pub fn read_nuisance(
 fn wrong_row_count(path: &Path, rows: usize, scans: usize, subject: &str, run: &str) -> Error {
     Problem::new(
         Location::file(path),
-        format!("the nuisance table has {rows} rows but subject {subject} run {run} has {scans} scans"),
+        format!(
+            "the nuisance table has {rows} rows but subject {subject} run {run} has {scans} scans"
+        ),
     )
     .with_hint("a nuisance table needs exactly one row per scan (after its header row)")
     .into()

@@ -58,7 +58,10 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
     let run_column = column(&study.trials.run_column, "[trials] run".into());
     let mut events = Vec::new();
     for event in &study.events {
-        let onset = column(&event.onset_column, format!("the onset of event \"{}\"", event.name));
+        let onset = column(
+            &event.onset_column,
+            format!("the onset of event \"{}\"", event.name),
+        );
         let duration = match &event.duration {
             Duration::Seconds(_) => Some(None),
             Duration::Column(name) => {
@@ -67,8 +70,11 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
         };
         let selector = match &event.selector {
             None => Some(None),
-            Some(selector) => column(&selector.column, format!("type_column of event \"{}\"", event.name))
-                .map(|index| Some((index, selector.value.clone()))),
+            Some(selector) => column(
+                &selector.column,
+                format!("type_column of event \"{}\"", event.name),
+            )
+            .map(|index| Some((index, selector.value.clone()))),
         };
         let mut modulators = Vec::new();
         for model in &study.models {
@@ -80,7 +86,12 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
             }
         }
         if let (Some(onset), Some(duration), Some(selector)) = (onset, duration, selector) {
-            events.push(EventColumns { onset, duration, selector, modulators });
+            events.push(EventColumns {
+                onset,
+                duration,
+                selector,
+                modulators,
+            });
         }
     }
     let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
@@ -140,7 +151,13 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
     problems.finish(runs)
 }
 
-fn new_run(study: &Study, subject: &str, run: &str, scans: usize, columns: &[EventColumns]) -> RunTrials {
+fn new_run(
+    study: &Study,
+    subject: &str,
+    run: &str,
+    scans: usize,
+    columns: &[EventColumns],
+) -> RunTrials {
     let events = study
         .events
         .iter()
@@ -193,7 +210,9 @@ fn add_trial(
                     table.cell_location(row, column),
                     format!("negative duration {d}"),
                 )
-                .with_hint("durations are in seconds and cannot be negative; use 0 for an impulse"));
+                .with_hint(
+                    "durations are in seconds and cannot be negative; use 0 for an impulse",
+                ));
             }
             Some(d) => d,
             None => {

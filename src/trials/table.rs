@@ -119,14 +119,19 @@ impl Table {
         };
         match cell.parse::<f64>() {
             Ok(value) if value.is_finite() => Ok(Some(value)),
-            Ok(_) => Err(Problem::new(location(), format!("\"{cell}\" is not a finite number"))
-                .with_hint("write n/a (or leave the cell empty) for a missing value")),
-            Err(_) => Err(Problem::new(location(), format!("\"{cell}\" is not a number"))
-                .with_hint(if cell.contains(',') {
-                    "use a point as the decimal separator".to_string()
-                } else {
-                    "write n/a (or leave the cell empty) for a missing value".to_string()
-                })),
+            Ok(_) => Err(
+                Problem::new(location(), format!("\"{cell}\" is not a finite number"))
+                    .with_hint("write n/a (or leave the cell empty) for a missing value"),
+            ),
+            Err(_) => Err(
+                Problem::new(location(), format!("\"{cell}\" is not a number")).with_hint(
+                    if cell.contains(',') {
+                        "use a point as the decimal separator".to_string()
+                    } else {
+                        "write n/a (or leave the cell empty) for a missing value".to_string()
+                    },
+                ),
+            ),
         }
     }
 
@@ -166,7 +171,9 @@ fn check_headers(path: &Path, headers: &[String], delimiter: u8) -> Result<()> {
         };
         return Err(Problem::new(
             Location::line(path, 1),
-            format!("the header is separated by {found}, but this file type is separated by {expected}"),
+            format!(
+                "the header is separated by {found}, but this file type is separated by {expected}"
+            ),
         )
         .with_hint("rename the file (.csv for commas, .tsv for tabs) or re-export it")
         .into());
@@ -201,7 +208,9 @@ impl LineIndex {
     /// 1-based line holding byte `offset`.
     fn line_of(&self, offset: u64) -> usize {
         // With CRLF ends the csv reader puts a record's start on the LF that precedes it.
-        self.0.partition_point(|&newline| (newline as u64) <= offset) + 1
+        self.0
+            .partition_point(|&newline| (newline as u64) <= offset)
+            + 1
     }
 }
 

@@ -1,0 +1,66 @@
+//! Command-line definitions (clap). Kept apart from `main.rs` so the help text can be
+//! read in one place.
+
+use std::path::PathBuf;
+
+use clap::{Parser, Subcommand, ValueEnum};
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "tangle",
+    version,
+    about = "How redundant are the model regressors of your fMRI design, per participant and run?",
+    long_about = "tangle builds the design each participant's GLM will really have (events, parametric \
+modulators from your computational models, HRF, high-pass filter, nuisance regressors) and measures \
+how much each regressor is inflated by the others. Thresholds are rules of thumb; the numbers do \
+not decide which model is true."
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Check every participant and run of a study file.
+    Check {
+        /// The study file (TOML).
+        study: PathBuf,
+        #[command(flatten)]
+        output: OutputArgs,
+    },
+    /// Check the bundled demo study (invented data; works from any folder).
+    Demo {
+        #[command(flatten)]
+        output: OutputArgs,
+    },
+}
+
+#[derive(Debug, clap::Args)]
+pub struct OutputArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Write the output to this file (atomically) instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Exit with code 3 when any participant reaches this status.
+    #[arg(long, value_enum, value_name = "STATUS")]
+    pub fail_on: Option<FailOn>,
+    /// Do not mean-centre parametric modulators (to see what centring does).
+    #[arg(long)]
+    pub no_centring: bool,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    Table,
+    Tsv,
+    Json,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum FailOn {
+    Caution,
+    Severe,
+}

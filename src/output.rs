@@ -1,0 +1,28 @@
+//! Writing results: to standard output, or to a file that appears whole or not at all
+//! (written to a temporary file in the same folder, then renamed over the target).
+
+use std::io::Write;
+use std::path::Path;
+
+use crate::error::{Error, Result};
+
+pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
+    let output_error = |source| Error::Output {
+        path: path.to_path_buf(),
+        source,
+    };
+    let folder = match path.parent() {
+        Some(folder) if !folder.as_os_str().is_empty() => folder,
+        _ => Path::new("."),
+    };
+    std::fs::create_dir_all(folder).map_err(output_error)?;
+    let mut temporary = tempfile::NamedTempFile::new_in(folder).map_err(output_error)?;
+    temporary
+        .write_all(contents.as_bytes())
+        .map_err(output_error)?;
+    temporary.as_file().sync_all().map_err(output_error)?;
+    temporary
+        .persist(path)
+        .map_err(|err| output_error(err.error))?;
+    Ok(())
+}

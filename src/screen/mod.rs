@@ -1,0 +1,230 @@
+//! Screening: turns a run's numbers into flags against the study's thresholds, and
+//! the runs of each participant into one status.
+//!
+//! The VIF thresholds are common-practice rules of thumb (5: look closer; 10: act),
+//! not laws: a VIF says how much a regressor's variance is inflated, not whether an
+//! effect can be found (O'Brien 2007). Statuses follow the lab's settings.
+
+use serde::Serialize;
+
+use crate::design::{Design, RegressorKind};
+use crate::diagnose::Diagnostics;
+use crate::flags::{Flag, Severity};
+use crate::study::Thresholds;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Status {
+    Ok,
+    Caution,
+    Severe,
+}
+
+impl Status {
+    pub fn label(self) -> &'static str {
+        match self {
+            Status::Ok => "ok",
+            Status::Caution => "caution",
+            Status::Severe => "severe",
+        }
+    }
+
+    fn of(severity: Severity) -> Status {
+        match severity {
+            Severity::Note => Status::Ok,
+            Severity::Caution => Status::Caution,
+            Severity::Severe | Severity::Error => Status::Severe,
+        }
+    }
+}
+
+/// Above this VIF a regressor is a combination of others up to rounding of the input.
+const NEAR_EXACT_VIF: f64 = 1e6;
+
+/// The status a single VIF earns against the thresholds.
+pub fn vif_status(vif: Option<f64>, thresholds: &Thresholds) -> Status {
+    match vif {
+        Some(v) if v >= thresholds.vif_severe => Status::Severe,
+        Some(v) if v >= thresholds.vif_caution => Status::Caution,
+        _ => Status::Ok,
+    }
+}
+
+/// Flags for VIFs above the thresholds on regressors of interest.
+pub fn vif_flags(design: &Design, diagnostics: &Diagnostics, thresholds: &Thresholds) -> Vec<Flag> {
+    let mut flags = Vec::new();
+    for (index, regressor) in design.regressors.iter().enumerate() {
+        if !regressor.kind.of_interest() && regressor.kind != RegressorKind::Derivative {
+            continue;
+        }
+        let Some(vif) = diagnostics.vif[index] else {
+            continue;
+        };
+        let (severity, code, limit) = match vif_status(Some(vif), thresholds) {
+            Status::Severe => (Severity::Severe, "vif_severe", thresholds.vif_severe),
+            Status::Caution => (Severity::Caution, "vif_caution", thresholds.vif_caution),
+            Status::Ok => continue,
+        };
+        // Derivatives are reported but do not set a status: they absorb timing, not a hypothesis.
+        let severity = if regressor.kind == RegressorKind::Derivative {
+            Severity::Note
+        } else {
+            severity
+        };
+        let mut message = format!(
+            "{} has VIF {:.1} (threshold {limit}): its variance is {:.1}× and its standard error {:.2}× what they would be without overlap",
+            regressor.name,
+            vif,
+            vif,
+            vif.sqrt()
+        );
+        if vif >= NEAR_EXACT_VIF {
+            message.push_str(
+                "; it is almost exactly a linear combination of other regressors (is one modulator a sum or difference of others, with rounding in the exported table?)",
+            );
+        }
+        let mut involved = vec![regressor.name.clone()];
+        if let Some((other, r)) = most_correlated(design, diagnostics, index) {
+            message.push_str(&format!("; most correlated with {other} (r = {r:.2})"));
+            involved.push(other);
+        }
+        flags.push(Flag::new(severity, code, involved, message));
+    }
+    flags
+}
+
+fn most_correlated(
+    design: &Design,
+    diagnostics: &Diagnostics,
+    index: usize,
+) -> Option<(String, f64)> {
+    diagnostics.correlation[index]
+        .iter()
+        .enumerate()
+        .filter(|(other, _)| *other != index)
+        .filter_map(|(other, r)| r.map(|r| (other, r)))
+        .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))
+        .map(|(other, r)| (design.regressors[other].name.clone(), r))
+}
+
+/// The worst status any flag earns.
+pub fn run_status(flags: &[Flag]) -> Status {
+    flags
+        .iter()
+        .map(|f| Status::of(f.severity))
+        .max()
+        .unwrap_or(Status::Ok)
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SubjectSummary {
+    pub subject: String,
+    /// Largest VIF among onset and modulator regressors over all the participant's runs.
+    pub worst_vif: Option<f64>,
+    pub worst_regressor: Option<String>,
+    /// Run holding the worst VIF.
+    pub worst_run: Option<String>,
+    pub status: Status,
+    /// Runs whose status equals the participant's (when not ok).
+    pub runs_flagged: Vec<String>,
+}
+
+/// What the subject summary needs to know about one run.
+pub struct RunOutcome<'a> {
+    pub subject: &'a str,
+    pub run: &'a str,
+    pub status: Status,
+    /// (regressor name, VIF) for regressors of interest with a defined VIF.
+    pub vifs: Vec<(&'a str, f64)>,
+}
+
+/// One summary per participant, in order of first appearance.
+pub fn summarise_subjects(runs: &[RunOutcome<'_>]) -> Vec<SubjectSummary> {
+    let mut subjects: Vec<SubjectSummary> = Vec::new();
+    for run in runs {
+        let position = subjects.iter().position(|s| s.subject == run.subject);
+        let index = match position {
+            Some(i) => i,
+            None => {
+                subjects.push(SubjectSummary {
+                    subject: run.subject.to_string(),
+                    worst_vif: None,
+                    worst_regressor: None,
+                    worst_run: None,
+                    status: Status::Ok,
+                    runs_flagged: Vec::new(),
+                });
+                subjects.len() - 1
+            }
+        };
+        let summary = &mut subjects[index];
+        for &(name, vif) in &run.vifs {
+            if summary.worst_vif.is_none_or(|worst| vif > worst) {
+                summary.worst_vif = Some(vif);
+                summary.worst_regressor = Some(name.to_string());
+                summary.worst_run = Some(run.run.to_string());
+            }
+        }
+        if run.status > summary.status {
+            summary.status = run.status;
+            summary.runs_flagged.clear();
+        }
+        if run.status == summary.status && run.status != Status::Ok {
+            summary.runs_flagged.push(run.run.to_string());
+        }
+    }
+    subjects
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn thresholds_are_inclusive_lower_bounds() {
+        let t = Thresholds::default();
+        assert_eq!(vif_status(Some(4.99), &t), Status::Ok);
+        assert_eq!(vif_status(Some(5.0), &t), Status::Caution);
+        assert_eq!(vif_status(Some(10.0), &t), Status::Severe);
+        assert_eq!(vif_status(None, &t), Status::Ok);
+    }
+
+    #[test]
+    fn subjects_take_their_worst_run() {
+        let runs = [
+            RunOutcome {
+                subject: "01",
+                run: "1",
+                status: Status::Caution,
+                vifs: vec![("a", 6.0)],
+            },
+            RunOutcome {
+                subject: "01",
+                run: "2",
+                status: Status::Severe,
+                vifs: vec![("a", 12.0), ("b", 2.0)],
+            },
+            RunOutcome {
+                subject: "01",
+                run: "3",
+                status: Status::Severe,
+                vifs: vec![("b", 11.0)],
+            },
+            RunOutcome {
+                subject: "02",
+                run: "1",
+                status: Status::Ok,
+                vifs: vec![],
+            },
+        ];
+        let summary = summarise_subjects(&runs);
+        assert_eq!(summary.len(), 2);
+        assert_eq!(summary[0].worst_vif, Some(12.0));
+        assert_eq!(summary[0].worst_regressor.as_deref(), Some("a"));
+        assert_eq!(summary[0].worst_run.as_deref(), Some("2"));
+        assert_eq!(summary[0].status, Status::Severe);
+        assert_eq!(summary[0].runs_flagged, ["2", "3"]);
+        assert_eq!(summary[1].worst_vif, None);
+        assert_eq!(summary[1].status, Status::Ok);
+    }
+}
