@@ -1,0 +1,386 @@
+//! The binary on small fixtures: outputs, exit codes and the behaviour promised in the README.
+
+mod common;
+
+use common::{Lcg, StudyDir, study_toml, trials_csv};
+use predicates::prelude::*;
+use serde_json::Value;
+
+fn vif(run: &Value, name: &str) -> Option<f64> {
+    let index = run["regressors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .position(|r| r["name"] == name)
+        .unwrap();
+    run["vif"][index].as_f64()
+}
+
+fn codes(run: &Value) -> Vec<String> {
+    run["flags"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["code"].as_str().unwrap().to_string())
+        .collect()
+}
+
+fn timing_study(gap: impl FnMut(&mut Lcg) -> f64) -> StudyDir {
+    let (trials, end) = trials_csv(&["01"], 40, gap, &[], |_, _| vec![]);
+    let dir = StudyDir::new();
+    let scans = (end / 2.0).ceil() as usize + 10;
+    dir.file("study.toml", &study_toml(2.0, scans, ""))
+        .file("trials.csv", &trials);
+    dir
+}
+
+#[test]
+fn events_half_a_second_apart_cannot_be_separated() {
+    // Common practice: two events 0.5 s apart on every trial give VIF > 10.
+    let report = timing_study(|_| 0.5).json(&[]);
+    let run = &report["runs"][0];
+    assert!(vif(run, "cue").unwrap() > 10.0, "{:?}", vif(run, "cue"));
+    assert!(vif(run, "outcome").unwrap() > 10.0);
+    assert_eq!(report["subjects"][0]["status"], "severe");
+}
+
+#[test]
+fn jittered_gaps_of_two_to_six_seconds_separate_the_events() {
+    // Common practice: the same events 2–6 s apart, jittered, give VIF < 5.
+    let report = timing_study(|rng| rng.uniform(2.0, 6.0)).json(&[]);
+    let run = &report["runs"][0];
+    assert!(vif(run, "cue").unwrap() < 5.0, "{:?}", vif(run, "cue"));
+    assert!(vif(run, "outcome").unwrap() < 5.0);
+    assert_eq!(report["subjects"][0]["status"], "ok");
+}
+
+fn modulator_study(
+    columns: &[&str],
+    models: &str,
+    values: impl FnMut(usize, &mut Lcg) -> Vec<String>,
+) -> StudyDir {
+    let (trials, end) = trials_csv(
+        &["01", "02"],
+        40,
+        |rng| rng.uniform(2.0, 6.0),
+        columns,
+        values,
+    );
+    let dir = StudyDir::new();
+    let scans = (end / 2.0).ceil() as usize + 10;
+    dir.file("study.toml", &study_toml(2.0, scans, models))
+        .file("trials.csv", &trials);
+    dir
+}
+
+#[test]
+fn a_modulator_equal_to_the_sum_of_two_others_is_an_exact_dependency() {
+    let models = r#"
+[[model]]
+name = "parts"
+modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column = "b" } ]
+[[model]]
+name = "whole"
+modulators = [ { event = "outcome", column = "total" } ]
+"#;
+    let dir = modulator_study(&["a", "b", "total"], models, |_, rng| {
+        // The sum of the values as written, so that the table itself holds total = a + b.
+        let a = (rng.uniform(-1.0, 1.0) * 1e4).round() / 1e4;
+        let b = (rng.uniform(-1.0, 1.0) * 1e4).round() / 1e4;
+        vec![
+            format!("{a:.4}"),
+            format!("{b:.4}"),
+            format!("{:.4}", a + b),
+        ]
+    });
+    let report = dir.json(&[]);
+    let run = &report["runs"][0];
+    let dependency = &run["dependencies"][0];
+    assert_eq!(
+        dependency["regressors"],
+        serde_json::json!(["whole:total", "parts:a", "parts:b"])
+    );
+    for (got, want) in dependency["coefficients"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip([1.0, -1.0, -1.0])
+    {
+        assert!((got.as_f64().unwrap() - want).abs() < 1e-6, "{dependency}");
+    }
+    // Inside the dependency: undefined. Outside it: finite.
+    for name in ["parts:a", "parts:b", "whole:total"] {
+        assert_eq!(vif(run, name), None, "{name}");
+    }
+    assert!(vif(run, "cue").unwrap() < 5.0);
+    assert!(vif(run, "outcome").unwrap() < 5.0);
+    assert!(codes(run).contains(&"exact_dependency".to_string()));
+    let table = dir.check(&[]).success().get_output().stdout.clone();
+    let table = String::from_utf8(table).unwrap();
+    assert!(
+        table.contains("whole:total ≈ 1.00·parts:a + 1.00·parts:b"),
+        "{table}"
+    );
+    dir.check(&["--fail-on", "severe"]).code(3);
+}
+
+#[test]
+fn a_constant_modulator_is_left_out_with_a_flag() {
+    let models = r#"
+[[model]]
+name = "m"
+modulators = [ { event = "outcome", column = "flat" }, { event = "outcome", column = "pe" } ]
+"#;
+    let report = modulator_study(&["flat", "pe"], models, |_, rng| {
+        vec!["0.7".into(), format!("{:.3}", rng.uniform(-1.0, 1.0))]
+    })
+    .json(&[]);
+    let run = &report["runs"][0];
+    assert_eq!(vif(run, "m:flat"), None);
+    assert!(vif(run, "m:pe").unwrap() < 5.0);
+    assert_eq!(run["regressors"][2]["in_design"], false);
+    assert!(codes(run).contains(&"constant_modulator".to_string()));
+    assert_eq!(run["correlation"][2][2], Value::Null);
+}
+
+#[test]
+fn centring_keeps_a_modulator_off_its_onset_regressor() {
+    let models =
+        "[[model]]\nname = \"m\"\nmodulators = [ { event = \"outcome\", column = \"v\" } ]\n";
+    let dir = modulator_study(&["v"], models, |_, rng| {
+        vec![format!("{:.3}", rng.uniform(4.0, 6.0))]
+    });
+    let centred = dir.json(&[]);
+    let raw = dir.json(&["--no-centring"]);
+    let (centred, raw) = (&centred["runs"][0], &raw["runs"][0]);
+    assert!(vif(centred, "outcome").unwrap() < 2.0);
+    // Values far from zero make the uncentred modulator almost a copy of the onset regressor.
+    assert!(vif(raw, "outcome").unwrap() > 10.0 * vif(centred, "outcome").unwrap());
+    assert_eq!(raw["status"], "severe");
+}
+
+#[test]
+fn missing_values_contribute_nothing_and_are_counted() {
+    let models =
+        "[[model]]\nname = \"m\"\nmodulators = [ { event = \"outcome\", column = \"v\" } ]\n";
+    let report = modulator_study(&["v"], models, |trial, rng| {
+        let value = rng.uniform(-1.0, 1.0);
+        vec![if trial % 10 == 3 {
+            "n/a".into()
+        } else {
+            format!("{value:.3}")
+        }]
+    })
+    .json(&[]);
+    let run = &report["runs"][0];
+    let flag = run["flags"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["code"] == "missing_values")
+        .unwrap();
+    assert!(
+        flag["message"]
+            .as_str()
+            .unwrap()
+            .starts_with("4 of 40 trials"),
+        "{flag}"
+    );
+    assert!(vif(run, "m:v").is_some());
+}
+
+#[test]
+fn late_onsets_are_ignored_and_early_ones_kept() {
+    let dir = StudyDir::new();
+    let mut trials = String::from("subject,run,cue_onset,outcome_onset\n");
+    for i in 0..30 {
+        let t = -1.0 + 9.0 * i as f64;
+        trials.push_str(&format!("01,1,{t},{}\n", t + 3.0 + (i % 4) as f64));
+    }
+    trials.push_str("01,1,400,404\n");
+    dir.file("study.toml", &study_toml(2.0, 150, ""))
+        .file("trials.csv", &trials);
+    let report = dir.json(&[]);
+    let codes = codes(&report["runs"][0]);
+    assert!(
+        codes.contains(&"onset_after_run_end".to_string()),
+        "{codes:?}"
+    );
+    assert!(codes.contains(&"negative_onset".to_string()), "{codes:?}");
+}
+
+#[test]
+fn nuisance_regressors_enter_the_design_and_wrong_lengths_are_errors() {
+    let (trials, _) = trials_csv(&["01"], 20, |rng| rng.uniform(2.0, 6.0), &[], |_, _| vec![]);
+    let scans = 100;
+    let extra =
+        "[nuisance]\nfile = \"confounds/sub-{subject}_run-{run}.tsv\"\ncolumns = [\"tx\"]\n";
+    let dir = StudyDir::new();
+    let mut motion = String::from("tx\tty\n");
+    let mut rng = Lcg(3);
+    for _ in 0..scans {
+        motion.push_str(&format!(
+            "{:.4}\t{:.4}\n",
+            rng.uniform(-0.1, 0.1),
+            rng.uniform(-0.1, 0.1)
+        ));
+    }
+    dir.file("study.toml", &study_toml(2.0, scans, extra))
+        .file("trials.csv", &trials)
+        .file("confounds/sub-01_run-1.tsv", &motion);
+    let report = dir.json(&[]);
+    let run = &report["runs"][0];
+    assert_eq!(run["regressors"][2]["kind"], "nuisance");
+    assert!(vif(run, "tx").is_some());
+
+    dir.file(
+        "confounds/sub-01_run-1.tsv",
+        &motion.lines().take(50).collect::<Vec<_>>().join("\n"),
+    );
+    dir.check(&[])
+        .code(1)
+        .stderr(
+            predicate::str::contains("sub-01_run-1.tsv").and(predicate::str::contains(
+                "49 rows but subject 01 run 1 has 100 scans",
+            )),
+        );
+}
+
+#[test]
+fn temporal_derivatives_are_added_on_request() {
+    let (trials, _) = trials_csv(&["01"], 20, |rng| rng.uniform(2.0, 6.0), &[], |_, _| vec![]);
+    let dir = StudyDir::new();
+    let text = study_toml(2.0, 120, "").replace("[trials]", "[hrf]\nderivative = true\n[trials]");
+    dir.file("study.toml", &text).file("trials.csv", &trials);
+    let report = dir.json(&[]);
+    let names: Vec<&str> = report["runs"][0]["regressors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["cue", "outcome", "cue:deriv", "outcome:deriv"]);
+    assert_eq!(report["settings"]["hrf"]["derivative"], true);
+}
+
+#[test]
+fn long_form_tables_select_rows_by_type() {
+    let dir = StudyDir::new();
+    let mut trials = String::from("subject\trun\tonset\tduration\ttrial_type\tpe\n");
+    let mut rng = Lcg(9);
+    let mut t = 1.0;
+    for _ in 0..25 {
+        trials.push_str(&format!("01\t1\t{t:.2}\t0\tcue\tn/a\n"));
+        t += rng.uniform(2.0, 6.0);
+        trials.push_str(&format!(
+            "01\t1\t{t:.2}\t1\tfeedback\t{:.3}\n",
+            rng.uniform(-1.0, 1.0)
+        ));
+        t += rng.uniform(3.0, 6.0);
+    }
+    let text = r#"[acquisition]
+tr = 2.0
+scans = 200
+[trials]
+file = "events.tsv"
+[[event]]
+name = "cue"
+type_column = "trial_type"
+type = "cue"
+[[event]]
+name = "feedback"
+type_column = "trial_type"
+type = "feedback"
+duration = "duration"
+[[model]]
+name = "m"
+modulators = [ { event = "feedback", column = "pe" } ]
+"#;
+    dir.file("study.toml", text).file("events.tsv", &trials);
+    let report = dir.json(&[]);
+    let run = &report["runs"][0];
+    assert_eq!(run["regressors"].as_array().unwrap().len(), 3);
+    assert!(vif(run, "m:pe").unwrap() < 2.0);
+    assert!(codes(run).is_empty(), "{:?}", codes(run));
+}
+
+#[test]
+fn tsv_has_one_row_per_run_and_regressor() {
+    let report = timing_study(|rng| rng.uniform(2.0, 6.0));
+    let output = report
+        .check(&["--format", "tsv"])
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let text = String::from_utf8(output).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines.len(), 3);
+    assert!(lines[0].starts_with("subject\trun\tregressor\tkind"));
+    assert!(lines[1].starts_with("01\t1\tcue\tonset\tcue\tn/a\tn/a\ttrue\t"));
+}
+
+#[test]
+fn out_writes_whole_files_and_a_failed_run_leaves_them_alone() {
+    let dir = timing_study(|rng| rng.uniform(2.0, 6.0));
+    dir.check(&["--format", "json", "--out", "results/report.json"])
+        .success()
+        .stdout("");
+    let written = std::fs::read_to_string(dir.path("results/report.json")).unwrap();
+    assert!(written.contains("\"tool\""));
+    dir.file(
+        "trials.csv",
+        "subject,run,cue_onset,outcome_onset\n01,1,abc,2\n",
+    );
+    dir.check(&["--format", "json", "--out", "results/report.json"])
+        .code(1);
+    assert_eq!(
+        std::fs::read_to_string(dir.path("results/report.json")).unwrap(),
+        written
+    );
+    let leftovers = std::fs::read_dir(dir.path("results")).unwrap().count();
+    assert_eq!(leftovers, 1, "no temporary files are left behind");
+}
+
+#[test]
+fn fail_on_sets_exit_code_three_only_when_reached() {
+    let severe = timing_study(|_| 0.5);
+    severe.check(&["--fail-on", "severe"]).code(3);
+    severe.check(&["--fail-on", "caution"]).code(3);
+    severe.check(&[]).code(0);
+    let fine = timing_study(|rng| rng.uniform(2.0, 6.0));
+    fine.check(&["--fail-on", "caution"]).code(0);
+}
+
+#[test]
+fn json_holds_the_documented_fields() {
+    let report = timing_study(|rng| rng.uniform(2.0, 6.0)).json(&[]);
+    for key in ["tool", "settings", "runs", "subjects"] {
+        assert!(report.get(key).is_some(), "{key}");
+    }
+    assert_eq!(report["tool"]["name"], "tangle");
+    let run = &report["runs"][0];
+    for key in [
+        "subject",
+        "run",
+        "scans",
+        "regressors",
+        "vif",
+        "correlation",
+        "dependencies",
+        "flags",
+    ] {
+        assert!(run.get(key).is_some(), "{key}");
+    }
+    let regressor = &run["regressors"][0];
+    for key in ["name", "kind", "event", "model", "column"] {
+        assert!(regressor.get(key).is_some(), "{key}");
+    }
+    let subject = &report["subjects"][0];
+    for key in ["subject", "worst_vif", "worst_regressor", "status"] {
+        assert!(subject.get(key).is_some(), "{key}");
+    }
+    assert_eq!(report["settings"]["microtime"], 16);
+    assert_eq!(report["settings"]["reference"], 0.5);
+    assert_eq!(report["settings"]["high_pass"], 128.0);
+}
