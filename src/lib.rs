@@ -5,6 +5,39 @@
 //! the edges): study file → [`study::Study`]; trial table → [`trials::RunTrials`] per
 //! run; → [`design::Design`] (the filtered design matrix) → [`diagnose::Diagnostics`]
 //! → [`screen`] flags and statuses → [`report`] renderers.
+//!
+//! ```
+//! use std::path::Path;
+//! use tangle::check::{CheckOptions, check_file};
+//! use tangle::files::MemoryFiles;
+//!
+//! let study = r#"
+//! [acquisition]
+//! tr = 2.0
+//! scans = 60
+//! [trials]
+//! file = "trials.csv"
+//! [[event]]
+//! name = "cue"
+//! onset = "cue_onset"
+//! [[event]]
+//! name = "outcome"
+//! onset = "outcome_onset"
+//! "#;
+//! // Outcomes always 0.5 s after the cue: the two events cannot be told apart.
+//! let mut trials = String::from("subject,run,cue_onset,outcome_onset\n");
+//! for trial in 0..12 {
+//!     let cue = 2.0 + 9.0 * trial as f64;
+//!     trials.push_str(&format!("01,1,{cue},{}\n", cue + 0.5));
+//! }
+//! let files = MemoryFiles::default()
+//!     .with("lab/study.toml", study)
+//!     .with("lab/trials.csv", trials);
+//! let report = check_file(&files, Path::new("lab/study.toml"), CheckOptions::default())?;
+//! let cue_vif = report.runs[0].vif[0].expect("defined");
+//! assert!(cue_vif > 10.0);
+//! # Ok::<(), tangle::Error>(())
+//! ```
 
 pub mod check;
 pub mod cli;
