@@ -143,3 +143,32 @@ fn design_columns_match_an_independent_numpy_build() {
         }
     }
 }
+
+#[test]
+fn every_demo_vif_matches_numpy_and_statsmodels() {
+    // demo-data/ rebuilt with pandas + numpy (dense convolution) and VIFs from statsmodels'
+    // variance_inflation_factor (tests/reference/make_references.py, demo_references).
+    let expected = json("demo_vif.json");
+    let report = tangle::demo::check_demo(Default::default()).unwrap();
+    let runs = expected["runs"].as_array().unwrap();
+    assert_eq!(report.runs.len(), runs.len());
+    for (run, want) in report.runs.iter().zip(runs) {
+        assert_eq!(run.subject, want["subject"].as_str().unwrap());
+        assert_eq!(run.run, want["run"].as_str().unwrap());
+        let names: Vec<&str> = run
+            .regressors
+            .iter()
+            .map(|r| r.regressor.name.as_str())
+            .collect();
+        let expected_names: Vec<&str> = expected["regressors"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_str().unwrap())
+            .collect();
+        assert_eq!(names, expected_names);
+        for (got, want) in run.vif.iter().zip(numbers(&want["vif"])) {
+            assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
+        }
+    }
+}

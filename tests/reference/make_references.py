@@ -16,6 +16,8 @@ Files
   design_fixture/study.toml    a tiny study file the Rust tool reads
   design_fixture/trials.csv    its trial table (input; drawn once, then the source of truth)
   design_fixture/expected.json the design those files imply, built densely with numpy
+  demo_vif.json                VIFs of every run of the bundled demo study (demo-data/),
+                               design built densely with numpy, VIFs by statsmodels
 """
 
 from __future__ import annotations
@@ -548,6 +550,70 @@ def fixture_references(out: Path) -> list[str]:
     return ["design_fixture/study.toml", "design_fixture/expected.json"]
 
 
+# --------------------------------------------------------------------------- demo study
+
+def demo_references(out: Path) -> list[str]:
+    """VIFs of every run of demo-data/, recomputed from its files with pandas, numpy and
+    statsmodels: dense microtime grid, np.convolve, lstsq projection on the drift basis,
+    variance_inflation_factor on the filtered (centred) columns."""
+    import tomllib
+    demo = HERE.parent.parent / "demo-data"
+    study = tomllib.loads((demo / "study.toml").read_text(encoding="utf-8"))
+    acq = study["acquisition"]
+    tr, scans = float(acq["tr"]), int(acq["scans"])
+    micro = int(acq.get("microtime", 16))
+    reference = float(acq.get("reference", 0.5))
+    cutoff = float(study.get("filter", {}).get("high_pass", 128.0))
+    dt = tr / micro
+    kernel = hrf(np.arange(int(math.ceil(32.0 / dt))) * dt)
+    kernel = kernel / kernel.sum()
+    start = round_half_away(32.0 / dt)
+    first_sample = round_half_away(reference * micro)
+    k = int(math.floor(2 * scans * tr / cutoff)) if cutoff > 0 else 0
+    n = np.arange(scans)
+    drift = np.column_stack([np.ones(scans)] + [np.cos(np.pi * j * (2 * n + 1) / (2 * scans))
+                                                 for j in range(1, k + 1)])
+    table = pd.read_csv(demo / study["trials"]["file"], dtype=str, keep_default_na=False)
+    events = {e["name"]: e["onset"] for e in study["event"]}
+
+    def regressor(onsets, heights):
+        length = start + scans * micro + 2 * len(kernel)
+        grid = np.zeros(length)
+        for onset, height in zip(onsets, heights):
+            grid[round_half_away(onset / dt) + start] += height   # sticks (duration 0)
+        return np.convolve(grid, kernel)[:length][start + first_sample + micro * n]
+
+    def number(cell):
+        return float("nan") if cell in ("", "n/a") else float(cell)
+
+    names, runs = [], []
+    for (subject, run), rows in table.groupby(["subject", "run"], sort=False):
+        columns, names = [], []
+        for event, onset_column in events.items():
+            columns.append(regressor(rows[onset_column].map(number), np.ones(len(rows))))
+            names.append(event)
+        for model in study["model"]:
+            for modulator in model["modulators"]:
+                values = rows[modulator["column"]].map(number).to_numpy(float)
+                heights = np.where(np.isnan(values), 0.0, values - np.nanmean(values))
+                columns.append(regressor(rows[events[modulator["event"]]].map(number), heights))
+                names.append(f"{model['name']}:{modulator['column']}")
+        design = np.column_stack(columns)
+        filtered = design - drift @ np.linalg.lstsq(drift, design, rcond=None)[0]
+        vifs = [variance_inflation_factor(filtered, j, standardize=False)
+                for j in range(filtered.shape[1])]
+        runs.append({"subject": subject, "run": run, "vif": floats(vifs)})
+    write_json(out / "demo_vif.json", {
+        "source": f"demo-data/ rebuilt with pandas {pd.__version__} and numpy {np.__version__} "
+                  f"(dense convolution), VIFs by statsmodels {statsmodels.__version__} "
+                  "variance_inflation_factor(filtered design, j, standardize=False); the filtered "
+                  "columns are centred, so the uncentred R2 it uses equals the centred one",
+        "regressors": names,
+        "runs": runs,
+    })
+    return ["demo_vif.json"]
+
+
 # --------------------------------------------------------------------------- write / check
 
 def generate(out: Path) -> list[str]:
@@ -555,6 +621,7 @@ def generate(out: Path) -> list[str]:
     files += longley_references(out)
     files += hrf_references(out)
     files += fixture_references(out)
+    files += demo_references(out)
     return files
 
 
