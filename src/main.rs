@@ -13,6 +13,14 @@ use tangle::screen::Status;
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    // A panic is a bug in tangle, never the user's fault: report it as an internal error (2).
+    std::panic::catch_unwind(|| run(&cli)).unwrap_or_else(|_| {
+        eprintln!("tangle: internal error (please report it, with the input that caused it)");
+        ExitCode::from(2)
+    })
+}
+
+fn run(cli: &Cli) -> ExitCode {
     let (result, output) = match &cli.command {
         Command::Check { study, output } => {
             (check_file(&DiskFiles, study, options(output)), output)

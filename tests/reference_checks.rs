@@ -33,6 +33,15 @@ fn numbers(value: &Value) -> Vec<f64> {
         .collect()
 }
 
+fn strings(value: &Value) -> Vec<&str> {
+    value
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_str().unwrap())
+        .collect()
+}
+
 fn longley() -> (Vec<String>, Vec<Vec<f64>>) {
     let table = Table::read(&DiskFiles, &reference("longley.csv")).unwrap();
     let columns = (0..table.headers.len())
@@ -54,12 +63,7 @@ fn longley_vifs_match_statsmodels() {
     // 135.5324 1788.5135 33.6189 3.5889 399.1510 758.9806.
     let expected = json("longley_vif.json");
     let (headers, columns) = longley();
-    let predictors: Vec<&str> = expected["predictors"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|v| v.as_str().unwrap())
-        .collect();
+    let predictors = strings(&expected["predictors"]);
     let chosen: Vec<Vec<f64>> = predictors
         .iter()
         .map(|name| columns[headers.iter().position(|h| h == name).unwrap()].clone())
@@ -115,12 +119,7 @@ fn design_columns_match_an_independent_numpy_build() {
     let runs = collect_runs(&study, &table, &scans).unwrap();
     let design = build_design(&DesignSettings::new(&study, true), &runs[0], None).unwrap();
     let names: Vec<&str> = design.regressors.iter().map(|r| r.name.as_str()).collect();
-    let expected_names: Vec<&str> = expected["regressors"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|v| v.as_str().unwrap())
-        .collect();
+    let expected_names = strings(&expected["regressors"]);
     assert_eq!(names, expected_names);
     for (key, columns) in [("sampled", &design.sampled), ("filtered", &design.filtered)] {
         for (column, want) in columns.iter().zip(expected[key].as_array().unwrap()) {
@@ -160,12 +159,7 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
             .iter()
             .map(|r| r.regressor.name.as_str())
             .collect();
-        let expected_names: Vec<&str> = expected["regressors"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|v| v.as_str().unwrap())
-            .collect();
+        let expected_names = strings(&expected["regressors"]);
         assert_eq!(names, expected_names);
         for (got, want) in run.vif.iter().zip(numbers(&want["vif"])) {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
