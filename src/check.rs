@@ -5,12 +5,17 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
+use crate::design::orthogonalise;
 use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
 use crate::error::{Problems, Result};
 use crate::files::{InputFiles, read_text};
-use crate::report::model::{Cohort, Report, RunReport, Settings, StudyInfo, ToolInfo};
-use crate::screen::{RunOutcome, run_status, summarise_subjects, vif_flags};
+use crate::report::model::{
+    Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
+};
+use crate::screen::{
+    RunOutcome, entangled_dimensions, entanglement_flags, run_status, summarise_subjects, vif_flags,
+};
 use crate::study::{Study, parse_study};
 use crate::trials::{RunTrials, ScanTable, Table, collect_runs, read_nuisance};
 
@@ -18,11 +23,16 @@ use crate::trials::{RunTrials, ScanTable, Table, collect_runs, read_nuisance};
 pub struct CheckOptions {
     /// Mean-centre parametric modulators (default true; off shows what centring does).
     pub centre: bool,
+    /// Also show the run with modulators serially orthogonalised, side by side.
+    pub orthogonalise: bool,
 }
 
 impl Default for CheckOptions {
     fn default() -> Self {
-        CheckOptions { centre: true }
+        CheckOptions {
+            centre: true,
+            orthogonalise: false,
+        }
     }
 }
 
@@ -40,7 +50,7 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
     let settings = DesignSettings::new(study, options.centre);
     let results: Vec<Result<RunReport>> = runs
         .par_iter()
-        .map(|run| check_run(files, study, &settings, run))
+        .map(|run| check_run(files, study, &settings, run, options))
         .collect();
     let mut problems = Problems::default();
     let reports: Vec<RunReport> = results
@@ -70,7 +80,7 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
             name: study.name.clone(),
             file: study.path.display().to_string(),
         },
-        settings: Settings::new(study, options.centre),
+        settings: Settings::new(study, options.centre, options.orthogonalise),
         cohort: Cohort::count(&subjects, reports.len()),
         subjects,
         runs: reports,
@@ -82,6 +92,7 @@ fn check_run(
     study: &Study,
     settings: &DesignSettings,
     run: &RunTrials,
+    options: CheckOptions,
 ) -> Result<RunReport> {
     let nuisance = match &study.nuisance {
         Some(spec) => Some(read_nuisance(
@@ -95,15 +106,27 @@ fn check_run(
     };
     let design = build_design(settings, run, nuisance.as_ref())?;
     let diagnostics = diagnose(&design);
+    let thresholds = &study.thresholds;
+    let dimensions = entangled_dimensions(&design, &diagnostics, thresholds);
     let mut flags = design.flags.clone();
     flags.extend(diagnostics.flags.iter().cloned());
-    flags.extend(vif_flags(&design, &diagnostics, &study.thresholds));
-    let status = run_status(&flags);
-    Ok(RunReport::new(
-        design,
-        diagnostics,
+    flags.extend(vif_flags(&design, &diagnostics, thresholds));
+    flags.extend(entanglement_flags(&design, &dimensions, thresholds));
+    let orthogonalised = options.orthogonalise.then(|| {
+        let serial = orthogonalise::serial(&design);
+        let view = OrthogonalisedView::new(&serial, diagnose(&serial));
+        let absorbed = serial
+            .flags
+            .into_iter()
+            .filter(|f| f.code == "absorbed_by_orthogonalisation");
+        flags.extend(absorbed);
+        view
+    });
+    let screening = RunScreening {
+        entangled_dimensions: dimensions,
+        status: run_status(&flags),
         flags,
-        status,
-        &study.thresholds,
-    ))
+        orthogonalised,
+    };
+    Ok(RunReport::new(design, diagnostics, screening, thresholds))
 }

@@ -50,6 +50,16 @@ pub struct OutputArgs {
     /// Do not mean-centre parametric modulators (to see what centring does).
     #[arg(long)]
     pub no_centring: bool,
+    /// Also show each run with its modulators orthogonalised in the order written,
+    /// side by side with the design as written (statuses stay those of the latter).
+    #[arg(long, value_enum, value_name = "METHOD", default_value_t = Orthogonalise::None)]
+    pub orthogonalise: Orthogonalise,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Orthogonalise {
+    None,
+    Serial,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

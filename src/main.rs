@@ -5,7 +5,7 @@ use std::process::ExitCode;
 
 use clap::Parser;
 use tangle::check::{CheckOptions, check_file};
-use tangle::cli::{Cli, Command, FailOn, Format, OutputArgs};
+use tangle::cli::{Cli, Command, FailOn, Format, Orthogonalise, OutputArgs};
 use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::report::{self, Report};
@@ -42,18 +42,22 @@ fn run(cli: &Cli) -> ExitCode {
 fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
         centre: !output.no_centring,
+        orthogonalise: output.orthogonalise == Orthogonalise::Serial,
     }
 }
 
 fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
     let text = match output.format {
         Format::Table => report::table::render(report),
-        Format::Tsv => report::tsv::render(report),
+        Format::Tsv => report::tsv::render_joined(report),
         Format::Json => report::json::render(report),
     };
-    match &output.out {
-        Some(path) => tangle::output::write_atomically(path, &text)?,
-        None => print!("{text}"),
+    match (&output.out, output.format) {
+        (Some(path), Format::Tsv) => {
+            tangle::output::write_tables(path, &report::tsv::render(report))?
+        }
+        (Some(path), _) => tangle::output::write_atomically(path, &text)?,
+        (None, _) => print!("{text}"),
     }
     let limit = output.fail_on.map(|level| match level {
         FailOn::Caution => Status::Caution,

@@ -26,3 +26,20 @@ pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
         .map_err(|err| output_error(err.error))?;
     Ok(())
 }
+
+/// Writes TSV tables beside each other: the regressors table to `path`, every other
+/// table to `<stem>.<table>.tsv` in the same folder.
+pub fn write_tables(path: &Path, tables: &[crate::report::tsv::TsvTable]) -> Result<()> {
+    for table in tables {
+        let target = if table.name == "regressors" {
+            path.to_path_buf()
+        } else {
+            let stem = path
+                .file_stem()
+                .map_or_else(|| "tangle".into(), |s| s.to_string_lossy().into_owned());
+            path.with_file_name(format!("{stem}.{}.tsv", table.name))
+        };
+        write_atomically(&target, &table.text)?;
+    }
+    Ok(())
+}

@@ -305,9 +305,9 @@ modulators = [ { event = "feedback", column = "pe" } ]
 }
 
 #[test]
-fn tsv_has_one_row_per_run_and_regressor() {
-    let report = timing_study(|rng| rng.uniform(2.0, 6.0));
-    let output = report
+fn tsv_tables_go_to_stdout_in_sections_or_to_sibling_files() {
+    let dir = timing_study(|rng| rng.uniform(2.0, 6.0));
+    let output = dir
         .check(&["--format", "tsv"])
         .success()
         .get_output()
@@ -315,9 +315,34 @@ fn tsv_has_one_row_per_run_and_regressor() {
         .clone();
     let text = String::from_utf8(output).unwrap();
     let lines: Vec<&str> = text.lines().collect();
-    assert_eq!(lines.len(), 3);
     assert!(lines[0].starts_with("subject\trun\tregressor\tkind"));
     assert!(lines[1].starts_with("01\t1\tcue\tonset\tcue\tn/a\tn/a\ttrue\t"));
+    assert_eq!(lines[3], "");
+    for section in [
+        "# dimensions",
+        "# model_sets",
+        "# contrasts",
+        "# dependencies",
+        "# flags",
+    ] {
+        assert!(lines.contains(&section), "{section}");
+    }
+    dir.check(&["--format", "tsv", "--out", "out/run.tsv"])
+        .success();
+    let regressors = std::fs::read_to_string(dir.path("out/run.tsv")).unwrap();
+    assert_eq!(regressors.lines().count(), 3);
+    let dimensions = std::fs::read_to_string(dir.path("out/run.dimensions.tsv")).unwrap();
+    assert!(dimensions.starts_with(
+        "subject\trun\tdimension\tcondition_index\tregressor\tproportion\tentangled\n"
+    ));
+    assert_eq!(
+        dimensions.lines().count(),
+        1 + 2 * 2,
+        "2 dimensions x 2 regressors"
+    );
+    for name in ["model_sets", "contrasts", "dependencies", "flags"] {
+        assert!(dir.path(&format!("out/run.{name}.tsv")).exists(), "{name}");
+    }
 }
 
 #[test]
@@ -383,4 +408,158 @@ fn json_holds_the_documented_fields() {
     assert_eq!(report["settings"]["microtime"], 16);
     assert_eq!(report["settings"]["reference"], 0.5);
     assert_eq!(report["settings"]["high_pass"], 128.0);
+}
+
+#[test]
+fn a_regressor_near_the_sum_of_two_others_is_named_by_its_dimension() {
+    // Pairwise correlations stay moderate, yet one direction of the design ties all three.
+    let models = r#"
+[[model]]
+name = "parts"
+modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column = "b" } ]
+[[model]]
+name = "whole"
+modulators = [ { event = "outcome", column = "total" } ]
+"#;
+    let dir = modulator_study(&["a", "b", "total"], models, |_, rng| {
+        let (a, b) = (rng.uniform(-1.0, 1.0), rng.uniform(-1.0, 1.0));
+        vec![
+            format!("{a:.4}"),
+            format!("{b:.4}"),
+            format!("{:.4}", a + b + rng.uniform(-0.03, 0.03)),
+        ]
+    });
+    let report = dir.json(&[]);
+    let run = &report["runs"][0];
+    assert!(run["dependencies"].as_array().unwrap().is_empty());
+    let names: Vec<&str> = run["regressors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["name"].as_str().unwrap())
+        .collect();
+    let [a, b] = [2, 3];
+    let r_ab = run["correlation"][a][b].as_f64().unwrap();
+    assert!(r_ab.abs() < 0.5, "a and b are nearly unrelated: {r_ab}");
+    let dimension = &run["entangled_dimensions"][0];
+    assert_eq!(
+        dimension["regressors"],
+        serde_json::json!(["parts:a", "parts:b", "whole:total"]),
+        "{names:?} {dimension}"
+    );
+    assert!(dimension["condition_index"].as_f64().unwrap() >= 30.0);
+    assert!(codes(run).contains(&"near_dependency".to_string()));
+    // Two modulators of one model as a set: the GVIF is large too.
+    let parts = &run["model_sets"][0];
+    assert_eq!(parts["model"], "parts");
+    assert!(parts["gvif"].as_f64().unwrap() > 10.0);
+    // Condition indices start at 1 and grow; proportions of each regressor sum to 1.
+    let indices: Vec<f64> = run["condition_indices"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    assert!((indices[0] - 1.0).abs() < 1e-12 && indices.windows(2).all(|w| w[1] >= w[0]));
+    for j in 0..names.len() {
+        let total: f64 = run["variance_proportions"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|row| row[j].as_f64().unwrap())
+            .sum();
+        assert!((total - 1.0).abs() < 1e-9);
+    }
+}
+
+#[test]
+fn exact_dependencies_leave_conditioning_defined_for_the_rest() {
+    let models = "[[model]]\nname = \"m\"\nmodulators = [ { event = \"outcome\", column = \"a\" }, { event = \"outcome\", column = \"a2\" } ]\n";
+    let dir = modulator_study(&["a", "a2"], models, |_, rng| {
+        let a = (rng.uniform(-1.0, 1.0) * 1e3).round() / 1e3;
+        vec![format!("{a:.3}"), format!("{:.3}", 2.0 * a)]
+    });
+    let report = dir.json(&[]);
+    let run = &report["runs"][0];
+    assert_eq!(
+        run["dependencies"][0]["regressors"],
+        serde_json::json!(["m:a2", "m:a"])
+    );
+    let indices = run["condition_indices"].as_array().unwrap();
+    assert_eq!(
+        indices.len(),
+        3,
+        "the dependent column is left out of the decomposition"
+    );
+    assert!(run["variance_proportions"][0][3].is_null());
+    assert!(run["model_sets"][0]["gvif"].is_null());
+}
+
+#[test]
+fn the_demo_names_the_entangled_regressors_of_its_nearly_identical_volunteers() {
+    let output = assert_cmd::Command::cargo_bin("tangle")
+        .unwrap()
+        .args(["demo", "--format", "json"])
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let report: Value = serde_json::from_slice(&output).unwrap();
+    let runs: Vec<&Value> = report["runs"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|r| r["subject"] == "03")
+        .collect();
+    for run in runs {
+        let dims = run["entangled_dimensions"].as_array().unwrap();
+        let pe = dims
+            .iter()
+            .find(|d| d["regressors"] == serde_json::json!(["delta:delta_pe", "hybrid:hybrid_pe"]));
+        assert!(pe.is_some(), "{dims:?}");
+        for set in run["model_sets"].as_array().unwrap() {
+            assert!(set["gvif"].as_f64().unwrap() > 100.0, "{set}");
+        }
+        let contrast = &run["contrasts"][1];
+        assert_eq!(contrast["name"], "delta:delta_pe - hybrid:hybrid_pe");
+        assert!(contrast["variance_inflation"].as_f64().unwrap() > 100.0);
+    }
+}
+
+#[test]
+fn serial_orthogonalisation_is_shown_beside_the_design_as_written() {
+    let models = "[[model]]\nname = \"a\"\nmodulators = [ { event = \"outcome\", column = \"x\" } ]\n[[model]]\nname = \"b\"\nmodulators = [ { event = \"outcome\", column = \"y\" } ]\n";
+    let dir = modulator_study(&["x", "y"], models, |_, rng| {
+        let x = rng.uniform(-1.0, 1.0);
+        vec![
+            format!("{x:.4}"),
+            format!("{:.4}", 0.9 * x + 0.3 * rng.uniform(-1.0, 1.0)),
+        ]
+    });
+    let plain = dir.json(&[]);
+    assert!(plain["runs"][0].get("orthogonalised").is_none());
+    let report = dir.json(&["--orthogonalise", "serial"]);
+    assert_eq!(report["settings"]["orthogonalisation"], "serial");
+    let run = &report["runs"][0];
+    let view = &run["orthogonalised"];
+    assert_eq!(view["order"], serde_json::json!(["a:x", "b:y"]));
+    // b:y's VIF drops, its precision (and so its test) is the same.
+    assert!(view["vif"][3].as_f64().unwrap() < run["vif"][3].as_f64().unwrap() / 2.0);
+    let (before, after) = (
+        run["efficiency"][3].as_f64().unwrap(),
+        view["efficiency"][3].as_f64().unwrap(),
+    );
+    assert!((before - after).abs() < 1e-9 * before);
+    // The status still describes the design as written.
+    assert_eq!(run["status"], plain["runs"][0]["status"]);
+    let table = String::from_utf8(
+        dir.check(&["--orthogonalise", "serial"])
+            .success()
+            .get_output()
+            .stdout
+            .clone(),
+    )
+    .unwrap();
+    assert!(table.contains("VIF serial") && table.contains("About 'VIF serial'"));
 }

@@ -8,7 +8,7 @@ use approx::assert_relative_eq;
 use serde_json::Value;
 use tangle::design::hrf::{canonical, canonical_derivative, sampled};
 use tangle::design::{DesignSettings, build_design};
-use tangle::diagnose::{diagnose, with_intercept};
+use tangle::diagnose::{belsley, diagnose, with_intercept};
 use tangle::files::{DiskFiles, read_text};
 use tangle::study::parse_study;
 use tangle::trials::{ScanTable, Table, collect_runs};
@@ -165,4 +165,189 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
         }
     }
+}
+
+fn table_of(value: &Value) -> Vec<Vec<f64>> {
+    value.as_array().unwrap().iter().map(numbers).collect()
+}
+
+#[test]
+fn longley_condition_indices_and_proportions_match_a_numpy_svd() {
+    // Belsley, Kuh & Welsch (1980) recipe (intercept kept, unit-length columns, no centring),
+    // against numpy.linalg.svd (tests/reference/make_references.py); the shared research
+    // notes reproduce the same table with 60-digit arithmetic (η_7 = 43275.0436).
+    let expected = &json("longley_vif.json")["bkw"];
+    let (headers, columns) = longley();
+    let mut design = vec![vec![1.0; 16]];
+    for name in &strings(&expected["columns"])[1..] {
+        design.push(columns[headers.iter().position(|h| h == name).unwrap()].clone());
+    }
+    let (indices, proportions) = belsley(&design).unwrap();
+    for (got, want) in indices.iter().zip(numbers(&expected["condition_indices"])) {
+        assert_relative_eq!(*got, want, max_relative = 1e-9);
+    }
+    for (row, want) in proportions.iter().zip(table_of(&expected["proportions"])) {
+        for (got, want) in row.iter().zip(want) {
+            assert_relative_eq!(*got, want, epsilon = 1e-9, max_relative = 1e-7);
+        }
+    }
+    assert_relative_eq!(indices[6], 43275.0436, max_relative = 1e-8);
+}
+
+fn published() -> Value {
+    json("published.json")
+}
+
+fn with_ones(data: &Value, names: &[&str], rows: usize) -> Vec<Vec<f64>> {
+    let mut columns = vec![vec![1.0; rows]];
+    columns.extend(names.iter().map(|name| numbers(&data[*name])));
+    columns
+}
+
+#[test]
+fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
+    // mtcars, mpg ~ disp + hp + wt + drat: R package olsrr's collinearity snapshot
+    // (rsquaredacademy/olsrr tests/testthat/_snaps/collindiag.md), rows = dimensions.
+    let case = &published()["bkw_mtcars"];
+    let columns = with_ones(&case["data"], &["disp", "hp", "wt", "drat"], 32);
+    let (indices, proportions) = belsley(&columns).unwrap();
+    for (got, want) in indices
+        .iter()
+        .zip(numbers(&case["published"]["condition_indices"]))
+    {
+        assert!((got - want).abs() < 5e-7, "{got} vs {want}");
+    }
+    for (row, want) in proportions
+        .iter()
+        .zip(table_of(&case["published"]["proportions"]))
+    {
+        for (got, want) in row.iter().zip(want) {
+            assert!((got - want).abs() < 5e-7, "{got} vs {want}");
+        }
+    }
+    // Body fat (Kutner et al. Table 7.1): SYSTAT listing, proportions printed with
+    // rows = variables (the transpose of ours), 6 decimals.
+    let case = &published()["bkw_bodyfat"];
+    let columns = with_ones(&case["data"], &["triceps", "thigh", "midarm"], 20);
+    let (indices, proportions) = belsley(&columns).unwrap();
+    for (got, want) in indices
+        .iter()
+        .zip(numbers(&case["published"]["condition_indices"]))
+    {
+        assert!((got - want).abs() < 5e-7, "{got} vs {want}");
+    }
+    let by_variable =
+        table_of(&case["published"]["variance_proportions_rows_variables_cols_components"]);
+    for (j, row) in by_variable.iter().enumerate() {
+        for (k, want) in row.iter().enumerate() {
+            assert!(
+                (proportions[k][j] - want).abs() < 5e-7,
+                "{} vs {want}",
+                proportions[k][j]
+            );
+        }
+    }
+}
+
+#[test]
+fn gvif_matches_exact_longley_values_and_the_published_duncan_example() {
+    // Longley sets: Fox & Monette (1992) formula with exact rational determinants (shared
+    // research notes, gvif.longley); a set and its complement share their GVIF.
+    let case = &published()["gvif_longley"]["expected"];
+    let (headers, columns) = longley();
+    let predictors: Vec<Vec<f64>> = ["GNPDEFL", "GNP", "UNEMP", "ARMED", "POP", "YEAR"]
+        .iter()
+        .map(|name| columns[headers.iter().position(|h| h == name).unwrap()].clone())
+        .collect();
+    for (set, key) in [
+        (vec![1, 4], "{GNP,POP}"),
+        (vec![2, 3], "{UNEMP,ARMED}"),
+        (vec![0, 1, 4, 5], "{GNPDEFL,GNP,POP,YEAR}"),
+    ] {
+        let gvif = tangle::diagnose::gvif_with_intercept(&predictors, &set).unwrap();
+        assert_relative_eq!(
+            gvif,
+            case[key]["gvif"].as_f64().unwrap(),
+            max_relative = 1e-8
+        );
+        let scaled = tangle::diagnose::scaled_gvif(gvif, set.len());
+        assert_relative_eq!(
+            scaled,
+            case[key]["gvif_pow_1_over_2df"].as_f64().unwrap(),
+            max_relative = 1e-8
+        );
+    }
+    // The same sets from numpy determinants (tests/reference/make_references.py).
+    let sets = &json("longley_vif.json")["gvif"]["sets"];
+    for set in sets.as_object().unwrap().values() {
+        let members: Vec<usize> = set["members"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|m| m.as_u64().unwrap() as usize)
+            .collect();
+        let gvif = tangle::diagnose::gvif_with_intercept(&predictors, &members).unwrap();
+        assert_relative_eq!(gvif, set["gvif"].as_f64().unwrap(), max_relative = 1e-9);
+    }
+    // A one-column set is its VIF (statsmodels value for GNP, longley_vif.json).
+    let gnp = tangle::diagnose::gvif_with_intercept(&predictors, &[1]).unwrap();
+    assert_relative_eq!(
+        gnp,
+        numbers(&json("longley_vif.json")["vif"])[1],
+        max_relative = 1e-9
+    );
+
+    // Duncan data, prestige ~ income + education + type (treatment coding, baseline "bc"):
+    // printed by the R car documentation's vif() example: 2.209178, 5.297584, 5.098592 (2 df).
+    let case = &published()["gvif_duncan"];
+    let types: Vec<&str> = strings(&case["data"]["type"]);
+    let dummy = |level: &str| {
+        types
+            .iter()
+            .map(|t| if *t == level { 1.0 } else { 0.0 })
+            .collect::<Vec<f64>>()
+    };
+    let columns = vec![
+        numbers(&case["data"]["income"]),
+        numbers(&case["data"]["education"]),
+        dummy("prof"),
+        dummy("wc"),
+    ];
+    let expected = &case["published"]["gvif_with_type"];
+    for (set, key) in [
+        (vec![0], "income"),
+        (vec![1], "education"),
+        (vec![2, 3], "type"),
+    ] {
+        let gvif = tangle::diagnose::gvif_with_intercept(&columns, &set).unwrap();
+        let want = numbers(&expected[key]);
+        assert!(
+            (gvif - want[0]).abs() < 5e-7,
+            "{key}: {gvif} vs {}",
+            want[0]
+        );
+        assert!(
+            (tangle::diagnose::scaled_gvif(gvif, set.len()) - want[2]).abs() < 5e-6,
+            "{key}"
+        );
+    }
+}
+
+#[test]
+fn efficiency_of_a_hand_checkable_design() {
+    // X = [1, x1, x2], x1 = [1, 1, −1, −1], x2 = [1, 0, 0, −1] (shared research notes,
+    // efficiency.toy; Dale 1999 definition). By hand: XᵀX = [[4,0,0],[0,4,2],[0,2,2]],
+    // (XᵀX)⁻¹ = [[.25,0,0],[0,.5,−.5],[0,−.5,1]], so efficiency = 1/0.5 = 2 for x1,
+    // 1/1 = 1 for x2, and 1/(0.5 + 1 + 2·0.5) = 0.4 for x1 − x2; r = 1/√2, VIF = 2.
+    let x1 = vec![1.0, 1.0, -1.0, -1.0];
+    let x2 = vec![1.0, 0.0, 0.0, -1.0];
+    let result = with_intercept(&["x1", "x2"], &[x1.clone(), x2.clone()]);
+    assert_relative_eq!(result.vif[0].unwrap(), 2.0, max_relative = 1e-12);
+    assert_relative_eq!(result.efficiency[0].unwrap(), 2.0, max_relative = 1e-12);
+    assert_relative_eq!(result.efficiency[1].unwrap(), 1.0, max_relative = 1e-12);
+    let (efficiency, inflation) =
+        tangle::diagnose::difference_with_intercept(&[x1, x2], 0, 1).unwrap();
+    assert_relative_eq!(efficiency, 0.4, max_relative = 1e-12);
+    // Uncorrelated columns of the same sizes would give 1/4 + 1/2 = 0.75: 2.5 / 0.75.
+    assert_relative_eq!(inflation, 2.5 / 0.75, max_relative = 1e-12);
 }

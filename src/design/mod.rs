@@ -5,6 +5,7 @@
 mod build;
 pub mod filter;
 pub mod hrf;
+pub mod orthogonalise;
 pub mod regressors;
 
 pub use build::{DesignSettings, build_design};

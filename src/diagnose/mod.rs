@@ -2,16 +2,24 @@
 //! scaled to unit length: because the constant has been projected out, these columns
 //! are centred, and their Gram matrix is the correlation matrix of the design.
 
+mod conditioning;
 mod correlation;
 mod dependencies;
+mod efficiency;
+mod sets;
+mod spectrum;
 mod vif;
 
+pub use conditioning::{Conditioning, belsley};
 pub use correlation::{TrialCorrelation, trial_correlations};
 pub use dependencies::{DEPENDENCY_TOLERANCE, Dependency};
+pub use efficiency::Contrast;
+pub use sets::{ModelSet, scaled as scaled_gvif};
+pub use spectrum::Spectrum;
 
 use nalgebra::DMatrix;
 
-use crate::design::Design;
+use crate::design::{Design, RegressorKind};
 use crate::flags::{Flag, Severity};
 
 /// A column whose filtered norm is below this fraction of its sampled norm lies
@@ -27,6 +35,12 @@ pub struct Diagnostics {
     /// Correlations of modulators of the same event across its trials, before convolution.
     pub trial_correlation: Vec<TrialCorrelation>,
     pub dependencies: Vec<Dependency>,
+    pub conditioning: Conditioning,
+    pub model_sets: Vec<ModelSet>,
+    /// Own-contrast efficiency 1/(cᵀ(XᵀX)⁻¹c) of each regressor, in the design's own units.
+    pub efficiency: Vec<Option<f64>>,
+    /// Differences between corresponding modulators of two models.
+    pub contrasts: Vec<Contrast>,
     pub flags: Vec<Flag>,
 }
 
@@ -40,17 +54,43 @@ pub(crate) struct UnitColumns {
     pub matrix: DMatrix<f64>,
 }
 
+/// What every diagnostic is derived from.
+struct Core {
+    unit: UnitColumns,
+    dependencies: Vec<Dependency>,
+    spectrum: Spectrum,
+    vif: Vec<Option<f64>>,
+}
+
+fn core(names: &[&str], columns: &[Vec<f64>], active: &[usize]) -> Core {
+    let unit = UnitColumns::new(columns, active);
+    let dependencies = dependencies::find(names, &unit);
+    let spectrum = Spectrum::new(&unit, &dependencies);
+    let vif = vif::variance_inflation(columns.len(), &unit, &spectrum, &dependencies);
+    Core {
+        unit,
+        dependencies,
+        spectrum,
+        vif,
+    }
+}
+
 pub fn diagnose(design: &Design) -> Diagnostics {
     let mut flags = Vec::new();
     let active = active_columns(design, &mut flags);
     let names: Vec<&str> = design.regressors.iter().map(|r| r.name.as_str()).collect();
-    let columns = analyse_columns(&names, &design.filtered, &active);
-    flags.extend(columns.dependencies.iter().map(Dependency::flag));
+    let count = names.len();
+    let core = core(&names, &design.filtered, &active);
+    flags.extend(core.dependencies.iter().map(Dependency::flag));
     Diagnostics {
-        vif: columns.vif,
-        correlation: columns.correlation,
+        correlation: correlation::filtered_correlation(count, &core.unit),
         trial_correlation: trial_correlations(design),
-        dependencies: columns.dependencies,
+        conditioning: conditioning::of_design(count, &core.unit, &core.spectrum),
+        model_sets: model_sets(design, &core),
+        efficiency: efficiency::own(count, &core.unit, &core.spectrum, &core.vif),
+        contrasts: contrasts(design, &core),
+        dependencies: core.dependencies,
+        vif: core.vif,
         flags,
     }
 }
@@ -61,38 +101,181 @@ pub struct ColumnDiagnostics {
     pub vif: Vec<Option<f64>>,
     pub correlation: Vec<Vec<Option<f64>>>,
     pub dependencies: Vec<Dependency>,
+    pub conditioning: Conditioning,
+    /// Own-contrast efficiency ‖x_j‖²/VIF_j of each column.
+    pub efficiency: Vec<Option<f64>>,
 }
 
-/// VIFs, correlations and exact dependencies of already-centred columns (e.g. a
-/// filtered design); `active` lists the columns taking part, the others get `None`.
+/// VIFs, correlations, exact dependencies and conditioning of already-centred columns
+/// (e.g. a filtered design); `active` lists the columns taking part, the others get `None`.
 pub fn analyse_columns(
     names: &[&str],
     columns: &[Vec<f64>],
     active: &[usize],
 ) -> ColumnDiagnostics {
-    let unit = UnitColumns::new(columns, active);
-    let dependencies = dependencies::find(names, &unit);
+    let core = core(names, columns, active);
     ColumnDiagnostics {
-        vif: vif::variance_inflation(columns.len(), &unit, &dependencies),
-        correlation: correlation::filtered_correlation(columns.len(), &unit),
-        dependencies,
+        correlation: correlation::filtered_correlation(columns.len(), &core.unit),
+        conditioning: conditioning::of_design(columns.len(), &core.unit, &core.spectrum),
+        efficiency: efficiency::own(columns.len(), &core.unit, &core.spectrum, &core.vif),
+        dependencies: core.dependencies,
+        vif: core.vif,
     }
 }
 
-/// Diagnostics of a regression with an intercept on raw predictors (e.g. the Longley
-/// data): each column is centred first, which is projecting out the constant.
-pub fn with_intercept(names: &[&str], columns: &[Vec<f64>]) -> ColumnDiagnostics {
-    let centred: Vec<Vec<f64>> = columns
+fn centred(columns: &[Vec<f64>]) -> Vec<Vec<f64>> {
+    columns
         .iter()
         .map(|column| {
             let mean = column.iter().sum::<f64>() / column.len() as f64;
             column.iter().map(|v| v - mean).collect()
         })
-        .collect();
-    let active: Vec<usize> = (0..columns.len())
-        .filter(|&j| euclidean(&centred[j]) > 0.0)
-        .collect();
-    analyse_columns(names, &centred, &active)
+        .collect()
+}
+
+fn nonzero(columns: &[Vec<f64>]) -> Vec<usize> {
+    (0..columns.len())
+        .filter(|&j| euclidean(&columns[j]) > 0.0)
+        .collect()
+}
+
+/// Diagnostics of a regression with an intercept on raw predictors (e.g. the Longley
+/// data): each column is centred first, which is projecting out the constant.
+pub fn with_intercept(names: &[&str], columns: &[Vec<f64>]) -> ColumnDiagnostics {
+    let centred = centred(columns);
+    analyse_columns(names, &centred, &nonzero(&centred))
+}
+
+/// GVIF of the columns at `set` in a regression with an intercept on raw predictors.
+pub fn gvif_with_intercept(columns: &[Vec<f64>], set: &[usize]) -> Option<f64> {
+    let centred = centred(columns);
+    let names = vec![""; columns.len()];
+    let core = core(&names, &centred, &nonzero(&centred));
+    if !core.dependencies.is_empty() {
+        return None;
+    }
+    let positions: Vec<usize> = set
+        .iter()
+        .map(|&j| core.unit.indices.iter().position(|&i| i == j))
+        .collect::<Option<_>>()?;
+    sets::generalized_vif(&core.unit, &core.spectrum, &positions)
+}
+
+/// Efficiency and variance inflation of the difference of columns `a` and `b` in a
+/// regression with an intercept on raw predictors.
+pub fn difference_with_intercept(columns: &[Vec<f64>], a: usize, b: usize) -> Option<(f64, f64)> {
+    let centred = centred(columns);
+    let names = vec![""; columns.len()];
+    let core = core(&names, &centred, &nonzero(&centred));
+    let pa = core.unit.indices.iter().position(|&i| i == a)?;
+    let pb = core.unit.indices.iter().position(|&i| i == b)?;
+    efficiency::difference(&core.unit, &core.spectrum, pa, pb)
+}
+
+/// Position among the kept (independent) columns of design regressor `index`.
+fn kept_position(core: &Core, index: usize) -> Option<usize> {
+    let a = core.unit.indices.iter().position(|&i| i == index)?;
+    core.spectrum.kept.iter().position(|&k| k == a)
+}
+
+fn model_names(design: &Design) -> Vec<&str> {
+    let mut models: Vec<&str> = Vec::new();
+    for regressor in &design.regressors {
+        if let Some(model) = regressor.model.as_deref() {
+            if !models.contains(&model) {
+                models.push(model);
+            }
+        }
+    }
+    models
+}
+
+fn modulators_of<'d>(design: &'d Design, model: &str) -> impl Iterator<Item = usize> + 'd {
+    let model = model.to_string();
+    design
+        .regressors
+        .iter()
+        .enumerate()
+        .filter(move |(_, r)| {
+            r.kind == RegressorKind::Modulator && r.model.as_deref() == Some(model.as_str())
+        })
+        .map(|(index, _)| index)
+}
+
+fn model_sets(design: &Design, core: &Core) -> Vec<ModelSet> {
+    model_names(design)
+        .into_iter()
+        .map(|model| {
+            let members: Vec<usize> = modulators_of(design, model)
+                .filter(|&i| core.unit.indices.contains(&i))
+                .collect();
+            let undefined = members.iter().any(|&i| core.vif[i].is_none());
+            let positions: Option<Vec<usize>> =
+                members.iter().map(|&i| kept_position(core, i)).collect();
+            let gvif = match positions {
+                Some(positions) if !undefined && !positions.is_empty() => {
+                    sets::generalized_vif(&core.unit, &core.spectrum, &positions)
+                }
+                _ => None,
+            };
+            ModelSet {
+                model: model.to_string(),
+                regressors: members
+                    .iter()
+                    .map(|&i| design.regressors[i].name.clone())
+                    .collect(),
+                df: members.len(),
+                gvif,
+                gvif_scaled: gvif.map(|g| sets::scaled(g, members.len())),
+            }
+        })
+        .collect()
+}
+
+/// Corresponding modulators of two models: the same event, the same position among
+/// that model's modulators of the event, in the order written.
+fn contrasts(design: &Design, core: &Core) -> Vec<Contrast> {
+    let models = model_names(design);
+    let mut result = Vec::new();
+    for (i, first) in models.iter().enumerate() {
+        for second in &models[i + 1..] {
+            let first_mods: Vec<usize> = modulators_of(design, first).collect();
+            let second_mods: Vec<usize> = modulators_of(design, second).collect();
+            for &a in &first_mods {
+                let event = &design.regressors[a].event;
+                let rank = first_mods
+                    .iter()
+                    .filter(|&&x| x < a && &design.regressors[x].event == event)
+                    .count();
+                let Some(&b) = second_mods
+                    .iter()
+                    .filter(|&&x| &design.regressors[x].event == event)
+                    .nth(rank)
+                else {
+                    continue;
+                };
+                let positions = (
+                    core.unit.indices.iter().position(|&x| x == a),
+                    core.unit.indices.iter().position(|&x| x == b),
+                );
+                let defined = core.vif[a].is_some() && core.vif[b].is_some();
+                let numbers = match positions {
+                    (Some(pa), Some(pb)) if defined => {
+                        efficiency::difference(&core.unit, &core.spectrum, pa, pb)
+                    }
+                    _ => None,
+                };
+                let (name_a, name_b) = (&design.regressors[a].name, &design.regressors[b].name);
+                result.push(Contrast {
+                    name: format!("{name_a} - {name_b}"),
+                    regressors: [name_a.clone(), name_b.clone()],
+                    efficiency: numbers.map(|n| n.0),
+                    variance_inflation: numbers.map(|n| n.1),
+                });
+            }
+        }
+    }
+    result
 }
 
 impl UnitColumns {

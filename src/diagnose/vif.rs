@@ -7,39 +7,22 @@
 //! the others are computed on a set of independent columns that spans the same space,
 //! so their VIFs stay finite and correct.
 
-use nalgebra::DMatrix;
-
-use super::{Dependency, UnitColumns};
+use super::{Dependency, Spectrum, UnitColumns};
 
 pub(crate) fn variance_inflation(
     count: usize,
     unit: &UnitColumns,
+    spectrum: &Spectrum,
     dependencies: &[Dependency],
 ) -> Vec<Option<f64>> {
     let mut vif = vec![None; count];
-    let undefined = |index: usize| dependencies.iter().any(|d| d.indices.contains(&index));
-    // Drop each dependency's dependent column: what remains is independent and spans the same space.
-    let dependent: Vec<usize> = dependencies.iter().map(|d| d.indices[0]).collect();
-    let kept: Vec<usize> = (0..unit.indices.len())
-        .filter(|&a| !dependent.contains(&unit.indices[a]))
-        .collect();
-    if kept.is_empty() {
-        return vif;
-    }
-    let matrix = DMatrix::from_fn(unit.matrix.nrows(), kept.len(), |row, col| {
-        unit.matrix[(row, kept[col])]
-    });
-    let svd = matrix.svd(false, true);
-    let Some(v_t) = svd.v_t else {
-        return vif;
-    };
-    for (col, &a) in kept.iter().enumerate() {
+    for (position, &a) in spectrum.kept.iter().enumerate() {
         let index = unit.indices[a];
-        if undefined(index) {
+        if dependencies.iter().any(|d| d.indices.contains(&index)) {
             continue;
         }
-        let value: f64 = (0..svd.singular_values.len())
-            .map(|k| (v_t[(k, col)] / svd.singular_values[k]).powi(2))
+        let value: f64 = (0..spectrum.dimensions())
+            .map(|k| spectrum.phi(k, position))
             .sum();
         if value.is_finite() {
             vif[index] = Some(value.max(1.0));

@@ -3,10 +3,12 @@
 
 use serde::Serialize;
 
-use crate::design::{Design, Regressor};
-use crate::diagnose::{DEPENDENCY_TOLERANCE, Dependency, Diagnostics, TrialCorrelation};
+use crate::design::{Design, Regressor, RegressorKind};
+use crate::diagnose::{
+    Contrast, DEPENDENCY_TOLERANCE, Dependency, Diagnostics, ModelSet, TrialCorrelation,
+};
 use crate::flags::Flag;
-use crate::screen::{Status, SubjectSummary, vif_status};
+use crate::screen::{EntangledDimension, Status, SubjectSummary, vif_status};
 use crate::study::{Study, Thresholds};
 
 /// Said in every output: the space the numbers live in.
@@ -51,6 +53,8 @@ pub struct Settings {
     pub high_pass: f64,
     pub hrf: HrfInfo,
     pub centring: bool,
+    /// "none" or "serial".
+    pub orthogonalisation: &'static str,
     pub thresholds: Thresholds,
     pub diagnostics_space: &'static str,
     pub dependency_tolerance: f64,
@@ -64,7 +68,7 @@ pub struct HrfInfo {
 }
 
 impl Settings {
-    pub fn new(study: &Study, centring: bool) -> Self {
+    pub fn new(study: &Study, centring: bool, orthogonalise: bool) -> Self {
         Settings {
             tr: study.acquisition.tr,
             microtime: study.acquisition.microtime,
@@ -76,6 +80,7 @@ impl Settings {
                 scaling: "sampled kernel divided by the sum of its samples",
             },
             centring,
+            orthogonalisation: if orthogonalise { "serial" } else { "none" },
             thresholds: study.thresholds,
             diagnostics_space: DIAGNOSTICS_SPACE,
             dependency_tolerance: DEPENDENCY_TOLERANCE,
@@ -107,16 +112,70 @@ pub struct RunReport {
     pub correlation: Vec<Vec<Option<f64>>>,
     pub trial_correlation: Vec<TrialCorrelation>,
     pub dependencies: Vec<Dependency>,
+    /// Belsley–Kuh–Welsch condition indices of the filtered, unit-length design.
+    pub condition_indices: Vec<f64>,
+    /// Dimensions × regressors (`null` for regressors not analysed).
+    pub variance_proportions: Vec<Vec<Option<f64>>>,
+    pub entangled_dimensions: Vec<EntangledDimension>,
+    pub model_sets: Vec<ModelSet>,
+    /// Own-contrast efficiency of each regressor (design units; compare within a study only).
+    pub efficiency: Vec<Option<f64>>,
+    pub contrasts: Vec<Contrast>,
+    /// Present with `--orthogonalise serial`: the same run with modulators orthogonalised.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub orthogonalised: Option<OrthogonalisedView>,
     pub flags: Vec<Flag>,
     pub status: Status,
+}
+
+/// The numbers that serial orthogonalisation changes, beside the as-written ones.
+#[derive(Debug, Clone, Serialize)]
+pub struct OrthogonalisedView {
+    pub method: &'static str,
+    /// Modulators in the order they were orthogonalised.
+    pub order: Vec<String>,
+    pub vif: Vec<Option<f64>>,
+    pub efficiency: Vec<Option<f64>>,
+    pub model_sets: Vec<ModelSet>,
+    pub contrasts: Vec<Contrast>,
+    pub caution: &'static str,
+}
+
+/// Said wherever orthogonalised numbers are shown.
+pub const ORTHOGONALISATION_CAUTION: &str = "Serial orthogonalisation does not remove redundancy, it assigns it. The fitted space is unchanged; each modulator's column loses what it shares with the modulators before it, and its estimate takes over what it shares with the modulators after it. So the last modulator keeps its estimate and its test (its VIF drops only because its column got shorter), while the earlier ones no longer measure what their models alone predict (Mumford, Poline & Poldrack 2015). Statuses and flags refer to the design as written.";
+
+impl OrthogonalisedView {
+    pub fn new(design: &Design, diagnostics: Diagnostics) -> Self {
+        OrthogonalisedView {
+            method: "serial",
+            order: design
+                .regressors
+                .iter()
+                .filter(|r| r.kind == RegressorKind::Modulator)
+                .map(|r| r.name.clone())
+                .collect(),
+            vif: diagnostics.vif,
+            efficiency: diagnostics.efficiency,
+            model_sets: diagnostics.model_sets,
+            contrasts: diagnostics.contrasts,
+            caution: ORTHOGONALISATION_CAUTION,
+        }
+    }
+}
+
+/// What a run report holds besides the design and its diagnostics.
+pub struct RunScreening {
+    pub entangled_dimensions: Vec<EntangledDimension>,
+    pub flags: Vec<Flag>,
+    pub status: Status,
+    pub orthogonalised: Option<OrthogonalisedView>,
 }
 
 impl RunReport {
     pub fn new(
         design: Design,
         diagnostics: Diagnostics,
-        flags: Vec<Flag>,
-        status: Status,
+        screening: RunScreening,
         thresholds: &Thresholds,
     ) -> Self {
         let regressors = design
@@ -153,8 +212,15 @@ impl RunReport {
             correlation: diagnostics.correlation,
             trial_correlation: diagnostics.trial_correlation,
             dependencies: diagnostics.dependencies,
-            flags,
-            status,
+            condition_indices: diagnostics.conditioning.condition_indices,
+            variance_proportions: diagnostics.conditioning.variance_proportions,
+            entangled_dimensions: screening.entangled_dimensions,
+            model_sets: diagnostics.model_sets,
+            efficiency: diagnostics.efficiency,
+            contrasts: diagnostics.contrasts,
+            orthogonalised: screening.orthogonalised,
+            flags: screening.flags,
+            status: screening.status,
         }
     }
 }

@@ -6,7 +6,6 @@ use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyl
 use super::Report;
 use super::format::ratio;
 use super::model::RunReport;
-use crate::flags::Severity;
 
 /// Plain-words cautions printed under every table.
 pub const READING_NOTES: &str = "\
@@ -46,6 +45,10 @@ pub fn render(report: &Report) -> String {
         report.cohort.subjects,
         READING_NOTES
     ));
+    if report.settings.orthogonalisation != "none" {
+        let note = wrap(super::model::ORTHOGONALISATION_CAUTION, 90, "  ");
+        text.push_str(&format!("\nAbout 'VIF serial'\n{note}\n"));
+    }
     text
 }
 
@@ -53,6 +56,26 @@ pub fn render(report: &Report) -> String {
 const COMPACT: TableStyle = TableStyle::new()
     .header_separator(LineStyle::none().fill('─').junction('─'))
     .bottom_border(LineStyle::none().fill('─').junction('─'));
+
+/// Greedy word wrap for notes printed in a terminal.
+fn wrap(text: &str, width: usize, indent: &str) -> String {
+    let mut lines = Vec::new();
+    let mut line = String::new();
+    for word in text.split_whitespace() {
+        if !line.is_empty() && line.len() + word.len() + 1 > width {
+            lines.push(format!("{indent}{line}"));
+            line.clear();
+        }
+        if !line.is_empty() {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    if !line.is_empty() {
+        lines.push(format!("{indent}{line}"));
+    }
+    lines.join("\n")
+}
 
 fn new_table(header: &[&str]) -> Table {
     let mut table = Table::new();
@@ -64,24 +87,33 @@ fn new_table(header: &[&str]) -> Table {
 }
 
 fn run_block(run: &RunReport) -> String {
-    let mut table = new_table(&["regressor", "kind", "model", "VIF", "SE x", "status"]);
+    let serial = run.orthogonalised.as_ref();
+    let mut header = vec!["regressor", "kind", "model", "VIF", "SE x", "status"];
+    if serial.is_some() {
+        header.push("VIF serial");
+    }
+    let mut table = new_table(&header);
     for (index, entry) in run.regressors.iter().enumerate() {
         let regressor = &entry.regressor;
-        let status = if !entry.in_design {
-            "left out"
-        } else {
+        let status = if entry.in_design {
             entry.status.label()
+        } else {
+            "left out"
         };
-        table.add_row(vec![
+        let mut row = vec![
             regressor.name.clone(),
             regressor.kind.label().to_string(),
             regressor.model.clone().unwrap_or_default(),
             ratio(run.vif[index]),
             ratio(run.se_inflation[index]),
             status.to_string(),
-        ]);
+        ];
+        if let Some(view) = serial {
+            row.push(ratio(view.vif[index]));
+        }
+        table.add_row(row);
     }
-    for column in [3, 4] {
+    for column in [3, 4, 6] {
         if let Some(column) = table.column_mut(column) {
             column.set_cell_alignment(CellAlignment::Right);
         }
@@ -94,12 +126,70 @@ fn run_block(run: &RunReport) -> String {
         run.drift_columns,
         run.status.label()
     );
-    for flag in run.flags.iter().filter(|f| f.severity > Severity::Note) {
+    text.push_str(&entanglement(run));
+    // Entangled dimensions are shown above; the other flags follow, most serious first.
+    let mut flags: Vec<_> = run
+        .flags
+        .iter()
+        .filter(|f| f.code != "near_dependency")
+        .collect();
+    flags.sort_by_key(|flag| std::cmp::Reverse(flag.severity));
+    for flag in flags {
         text.push_str(&format!("  {}: {}\n", flag.severity.label(), flag.message));
     }
-    let notes = run.flags.iter().filter(|f| f.severity == Severity::Note);
-    for flag in notes {
-        text.push_str(&format!("  note: {}\n", flag.message));
+    if let Some(view) = serial {
+        text.push_str(&format!(
+            "  'VIF serial': modulators orthogonalised in the order {} (see the note at the end)\n",
+            view.order.join(" → ")
+        ));
+    }
+    text
+}
+
+/// The anatomy of a run's redundancy: near-dependencies, model sets, model differences.
+fn entanglement(run: &RunReport) -> String {
+    let mut text = String::new();
+    for dimension in &run.entangled_dimensions {
+        let severity = run
+            .flags
+            .iter()
+            .find(|f| f.code == "near_dependency" && f.regressors == dimension.regressors)
+            .map_or("note", |f| f.severity.label());
+        let members: Vec<String> = dimension
+            .regressors
+            .iter()
+            .zip(&dimension.proportions)
+            .map(|(name, p)| format!("{name} {p:.2}"))
+            .collect();
+        text.push_str(&format!(
+            "  {severity}: entangled dimension {} (condition index {:.1}): {}\n",
+            dimension.dimension,
+            dimension.condition_index,
+            members.join(", ")
+        ));
+    }
+    let sets: Vec<String> = run
+        .model_sets
+        .iter()
+        .map(|set| {
+            format!(
+                "{} GVIF {} (scaled {}, {} modulators)",
+                set.model,
+                ratio(set.gvif),
+                ratio(set.gvif_scaled),
+                set.df
+            )
+        })
+        .collect();
+    if !sets.is_empty() {
+        text.push_str(&format!("  model sets: {}\n", sets.join("; ")));
+    }
+    for contrast in &run.contrasts {
+        text.push_str(&format!(
+            "  difference {}: variance {}× that of two uncorrelated regressors\n",
+            contrast.name,
+            ratio(contrast.variance_inflation)
+        ));
     }
     text
 }

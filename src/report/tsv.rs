@@ -1,64 +1,263 @@
-//! `--format tsv`: one tidy row per run × regressor, full precision, `n/a` = undefined.
+//! `--format tsv`: tidy tables, one per kind of result, full precision, `n/a` where a
+//! value is undefined. With `--out FILE.tsv` each table is its own file
+//! (FILE.tsv for the regressors, FILE.<table>.tsv for the others); on standard output
+//! they follow each other, each after a line `# <table>`.
 
 use super::Report;
 use super::format::exact;
+use super::model::RunReport;
 
-const HEADER: [&str; 14] = [
-    "subject",
-    "run",
-    "regressor",
-    "kind",
-    "event",
-    "model",
-    "column",
-    "in_design",
-    "vif",
-    "se_inflation",
-    "status",
-    "most_correlated",
-    "r",
-    "run_status",
-];
+pub struct TsvTable {
+    pub name: &'static str,
+    pub text: String,
+}
 
-pub fn render(report: &Report) -> String {
-    let mut text = HEADER.join("\t");
-    text.push('\n');
+struct Builder {
+    text: String,
+}
+
+impl Builder {
+    fn new(header: &[&str]) -> Self {
+        Builder {
+            text: format!("{}\n", header.join("\t")),
+        }
+    }
+
+    fn row(&mut self, run: &RunReport, cells: Vec<String>) {
+        let mut all = vec![clean(&run.subject), clean(&run.run)];
+        all.extend(cells.iter().map(|c| clean(c)));
+        self.text.push_str(&all.join("\t"));
+        self.text.push('\n');
+    }
+
+    fn done(self, name: &'static str) -> TsvTable {
+        TsvTable {
+            name,
+            text: self.text,
+        }
+    }
+}
+
+fn text(value: &Option<String>) -> String {
+    value.clone().unwrap_or_else(|| "n/a".into())
+}
+
+pub fn render(report: &Report) -> Vec<TsvTable> {
+    vec![
+        regressors(report),
+        dimensions(report),
+        model_sets(report),
+        contrasts(report),
+        dependencies(report),
+        flags(report),
+    ]
+}
+
+/// Everything on standard output, one table after another.
+pub fn render_joined(report: &Report) -> String {
+    let tables = render(report);
+    let mut text = String::new();
+    for (i, table) in tables.iter().enumerate() {
+        if i > 0 {
+            text.push_str(&format!("\n# {}\n", table.name));
+        }
+        text.push_str(&table.text);
+    }
+    text
+}
+
+fn regressors(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "regressor",
+        "kind",
+        "event",
+        "model",
+        "column",
+        "in_design",
+        "vif",
+        "se_inflation",
+        "efficiency",
+        "status",
+        "most_correlated",
+        "r",
+        "vif_serial",
+        "run_status",
+    ]);
     for run in &report.runs {
         for (index, entry) in run.regressors.iter().enumerate() {
             let regressor = &entry.regressor;
             let partner = run.correlation[index]
                 .iter()
                 .enumerate()
-                .filter(|(other, r)| *other != index && r.is_some())
-                .max_by(|a, b| {
-                    a.1.unwrap_or(0.0)
-                        .abs()
-                        .total_cmp(&b.1.unwrap_or(0.0).abs())
-                });
-            let cells = [
-                run.subject.clone(),
-                run.run.clone(),
-                regressor.name.clone(),
-                regressor.kind.label().to_string(),
-                regressor.event.clone().unwrap_or_else(|| "n/a".into()),
-                regressor.model.clone().unwrap_or_else(|| "n/a".into()),
-                regressor.column.clone().unwrap_or_else(|| "n/a".into()),
-                entry.in_design.to_string(),
-                exact(run.vif[index]),
-                exact(run.se_inflation[index]),
-                entry.status.label().to_string(),
-                partner.map_or("n/a".into(), |(other, _)| {
-                    run.regressors[other].regressor.name.clone()
-                }),
-                exact(partner.and_then(|(_, r)| *r)),
-                run.status.label().to_string(),
-            ];
-            let cells: Vec<String> = cells.iter().map(|c| clean(c)).collect();
-            text.push_str(&cells.join("\t"));
-            text.push('\n');
+                .filter_map(|(other, r)| r.filter(|_| other != index).map(|r| (other, r)))
+                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            table.row(
+                run,
+                vec![
+                    regressor.name.clone(),
+                    regressor.kind.label().to_string(),
+                    text(&regressor.event),
+                    text(&regressor.model),
+                    text(&regressor.column),
+                    entry.in_design.to_string(),
+                    exact(run.vif[index]),
+                    exact(run.se_inflation[index]),
+                    exact(run.efficiency[index]),
+                    entry.status.label().to_string(),
+                    partner.map_or("n/a".into(), |(other, _)| {
+                        run.regressors[other].regressor.name.clone()
+                    }),
+                    exact(partner.map(|(_, r)| r)),
+                    exact(run.orthogonalised.as_ref().and_then(|view| view.vif[index])),
+                    run.status.label().to_string(),
+                ],
+            );
         }
     }
-    text
+    table.done("regressors")
+}
+
+fn dimensions(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "dimension",
+        "condition_index",
+        "regressor",
+        "proportion",
+        "entangled",
+    ]);
+    for run in &report.runs {
+        for (k, (index, row)) in run
+            .condition_indices
+            .iter()
+            .zip(&run.variance_proportions)
+            .enumerate()
+        {
+            let entangled = run
+                .entangled_dimensions
+                .iter()
+                .find(|d| d.dimension == k + 1);
+            for (j, proportion) in row.iter().enumerate() {
+                let Some(proportion) = proportion else {
+                    continue;
+                };
+                let name = &run.regressors[j].regressor.name;
+                let loads = entangled.is_some_and(|d| d.regressors.contains(name));
+                table.row(
+                    run,
+                    vec![
+                        (k + 1).to_string(),
+                        index.to_string(),
+                        name.clone(),
+                        proportion.to_string(),
+                        loads.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("dimensions")
+}
+
+fn model_sets(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "model",
+        "df",
+        "gvif",
+        "gvif_scaled",
+        "regressors",
+    ]);
+    for run in &report.runs {
+        for set in &run.model_sets {
+            table.row(
+                run,
+                vec![
+                    set.model.clone(),
+                    set.df.to_string(),
+                    exact(set.gvif),
+                    exact(set.gvif_scaled),
+                    set.regressors.join(","),
+                ],
+            );
+        }
+    }
+    table.done("model_sets")
+}
+
+fn contrasts(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "contrast",
+        "first",
+        "second",
+        "efficiency",
+        "variance_inflation",
+    ]);
+    for run in &report.runs {
+        for contrast in &run.contrasts {
+            table.row(
+                run,
+                vec![
+                    contrast.name.clone(),
+                    contrast.regressors[0].clone(),
+                    contrast.regressors[1].clone(),
+                    exact(contrast.efficiency),
+                    exact(contrast.variance_inflation),
+                ],
+            );
+        }
+    }
+    table.done("contrasts")
+}
+
+fn dependencies(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&["subject", "run", "dependency", "regressor", "coefficient"]);
+    for run in &report.runs {
+        for (number, dependency) in run.dependencies.iter().enumerate() {
+            for (name, coefficient) in dependency.regressors.iter().zip(&dependency.coefficients) {
+                table.row(
+                    run,
+                    vec![
+                        (number + 1).to_string(),
+                        name.clone(),
+                        coefficient.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("dependencies")
+}
+
+fn flags(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "severity",
+        "code",
+        "regressors",
+        "message",
+    ]);
+    for run in &report.runs {
+        for flag in &run.flags {
+            table.row(
+                run,
+                vec![
+                    flag.severity.label().to_string(),
+                    flag.code.to_string(),
+                    flag.regressors.join(","),
+                    flag.message.clone(),
+                ],
+            );
+        }
+    }
+    table.done("flags")
 }
 
 /// Tabs and line breaks inside a cell would break the table.

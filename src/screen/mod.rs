@@ -107,6 +107,96 @@ fn most_correlated(
         .map(|(other, r)| (design.regressors[other].name.clone(), r))
 }
 
+/// A direction of the design along which two or more regressors are nearly dependent:
+/// condition index at or above the threshold, and at least two regressors with
+/// variance-decomposition proportions ≥ 0.5 on it (Belsley, Kuh & Welsch 1980).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EntangledDimension {
+    /// 1-based, in the order of `condition_indices`.
+    pub dimension: usize,
+    pub condition_index: f64,
+    pub regressors: Vec<String>,
+    pub proportions: Vec<f64>,
+}
+
+/// Proportion at which a regressor counts as loading on a dimension (BKW 1980).
+pub const LOADING: f64 = 0.5;
+
+pub fn entangled_dimensions(
+    design: &Design,
+    diagnostics: &Diagnostics,
+    thresholds: &Thresholds,
+) -> Vec<EntangledDimension> {
+    let conditioning = &diagnostics.conditioning;
+    let mut result = Vec::new();
+    for (k, (&index, row)) in conditioning
+        .condition_indices
+        .iter()
+        .zip(&conditioning.variance_proportions)
+        .enumerate()
+    {
+        if index < thresholds.condition_index {
+            continue;
+        }
+        let loading: Vec<(usize, f64)> = row
+            .iter()
+            .enumerate()
+            .filter_map(|(j, p)| p.filter(|&p| p >= LOADING).map(|p| (j, p)))
+            .collect();
+        if loading.len() < 2 {
+            continue;
+        }
+        result.push(EntangledDimension {
+            dimension: k + 1,
+            condition_index: index,
+            regressors: loading
+                .iter()
+                .map(|&(j, _)| design.regressors[j].name.clone())
+                .collect(),
+            proportions: loading.iter().map(|&(_, p)| p).collect(),
+        });
+    }
+    result
+}
+
+/// One flag per entangled dimension; a note when none of its regressors is of interest.
+pub fn entanglement_flags(
+    design: &Design,
+    dimensions: &[EntangledDimension],
+    thresholds: &Thresholds,
+) -> Vec<Flag> {
+    dimensions
+        .iter()
+        .map(|dimension| {
+            let of_interest = dimension.regressors.iter().any(|name| {
+                design.regressors.iter().any(|r| &r.name == name && r.kind.of_interest())
+            });
+            let severity = match (of_interest, dimension.condition_index >= thresholds.condition_index_severe) {
+                (false, _) => Severity::Note,
+                (true, true) => Severity::Severe,
+                (true, false) => Severity::Caution,
+            };
+            let members: Vec<String> = dimension
+                .regressors
+                .iter()
+                .zip(&dimension.proportions)
+                .map(|(name, p)| format!("{name} ({p:.2})"))
+                .collect();
+            Flag::new(
+                severity,
+                "near_dependency",
+                dimension.regressors.clone(),
+                format!(
+                    "near-dependency (condition index {:.1}, threshold {}): {} have most of their variance on one direction of the design, so their separate estimates are unstable",
+                    dimension.condition_index,
+                    thresholds.condition_index,
+                    members.join(", ")
+                ),
+            )
+        })
+        .collect()
+}
+
 /// The worst status any flag earns.
 pub fn run_status(flags: &[Flag]) -> Status {
     flags

@@ -114,6 +114,8 @@ pub struct Thresholds {
     pub vif_caution: f64,
     pub vif_severe: f64,
     pub condition_index: f64,
+    /// Above this a near-dependency is severe (common practice: 100).
+    pub condition_index_severe: f64,
 }
 
 impl Default for Thresholds {
@@ -122,6 +124,7 @@ impl Default for Thresholds {
             vif_caution: 5.0,
             vif_severe: 10.0,
             condition_index: 30.0,
+            condition_index_severe: 100.0,
         }
     }
 }

@@ -423,6 +423,11 @@ impl Reader<'_> {
         let caution = positive(self, "vif_caution", defaults.vif_caution);
         let severe = positive(self, "vif_severe", defaults.vif_severe);
         let index = positive(self, "condition_index", defaults.condition_index);
+        let index_severe = positive(
+            self,
+            "condition_index_severe",
+            defaults.condition_index_severe,
+        );
         let (caution, severe) = (caution?, severe?);
         if caution > severe {
             let span = get(table, "vif_caution").map_or(0..0, |v| v.span());
@@ -432,10 +437,22 @@ impl Reader<'_> {
             );
             return None;
         }
+        let (index, index_severe) = (index?, index_severe?);
+        if index > index_severe {
+            let span = get(table, "condition_index").map_or(0..0, |v| v.span());
+            self.problem(
+                span,
+                format!(
+                    "condition_index ({index}) is above condition_index_severe ({index_severe})"
+                ),
+            );
+            return None;
+        }
         Some(Thresholds {
             vif_caution: caution,
             vif_severe: severe,
-            condition_index: index?,
+            condition_index: index,
+            condition_index_severe: index_severe,
         })
     }
 

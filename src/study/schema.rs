@@ -25,7 +25,12 @@ pub fn keys_of(section: &str) -> &'static [&'static str] {
         "model" => &["name", "modulators"],
         "modulators" => &["event", "column"],
         "nuisance" => &["file", "columns"],
-        "thresholds" => &["vif_caution", "vif_severe", "condition_index"],
+        "thresholds" => &[
+            "vif_caution",
+            "vif_severe",
+            "condition_index",
+            "condition_index_severe",
+        ],
         _ => &[],
     }
 }

@@ -269,6 +269,16 @@ def longley_references(out: Path) -> list[str]:
           "BKW proportions of a variable do not sum to 1")
 
     ver = versions()
+    # Generalized VIF (Fox & Monette 1992) of predictor sets, from numpy determinants of
+    # blocks of the correlation matrix: det(R_set) * det(R_rest) / det(R).
+    gvif_sets = {"GNP,POP": [1, 4], "UNEMP,ARMED": [2, 3], "GNPDEFL,GNP,POP,YEAR": [0, 1, 4, 5], "GNP": [1]}
+    gvif = {}
+    for key, members in gvif_sets.items():
+        rest = [j for j in range(len(LONGLEY_PREDICTORS)) if j not in members]
+        value = (np.linalg.det(corr[np.ix_(members, members)]) * np.linalg.det(corr[np.ix_(rest, rest)])
+                 / np.linalg.det(corr))
+        gvif[key] = {"members": members, "gvif": float(value)}
+
     write_json(out / "longley_vif.json", {
         "source": (f"statsmodels {ver['statsmodels']} (numpy {ver['numpy']}, pandas {ver['pandas']}), "
                    "function statsmodels.stats.outliers_influence.variance_inflation_factor"
@@ -292,6 +302,12 @@ def longley_references(out: Path) -> list[str]:
             "eigenvalues": floats(mu ** 2),
             "condition_indices": floats(condition_indices),
             "proportions": matrix(proportions),
+        },
+        "gvif": {
+            "source": (f"numpy {ver['numpy']} numpy.linalg.det on blocks of the predictors' correlation "
+                       "matrix (numpy.corrcoef): GVIF = det(R_set) det(R_rest) / det(R) "
+                       "(Fox & Monette 1992); members index the predictors list"),
+            "sets": gvif,
         },
     })
     return ["longley.csv", "longley_vif.json"]
