@@ -10,11 +10,13 @@ use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
 use crate::error::{Problems, Result};
 use crate::files::{InputFiles, read_text};
+use crate::partition::cohort;
 use crate::report::model::{
     Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
 };
 use crate::screen::{
-    RunOutcome, entangled_dimensions, entanglement_flags, run_status, summarise_subjects, vif_flags,
+    CLAIMS_NOTE, RunOutcome, claim_flags, entangled_dimensions, entanglement_flags, run_status,
+    summarise_subjects, vif_flags,
 };
 use crate::study::{Study, parse_study};
 use crate::trials::{RunTrials, ScanTable, Table, collect_runs, read_nuisance};
@@ -82,6 +84,13 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
         },
         settings: Settings::new(study, options.centre, options.orthogonalise),
         cohort: Cohort::count(&subjects, reports.len()),
+        cohort_partition: cohort::summarise(
+            &reports
+                .iter()
+                .map(|r| (r.subject.as_str(), r.partition.as_slice()))
+                .collect::<Vec<_>>(),
+        ),
+        claims_note: CLAIMS_NOTE,
         subjects,
         runs: reports,
     })
@@ -112,6 +121,7 @@ fn check_run(
     flags.extend(diagnostics.flags.iter().cloned());
     flags.extend(vif_flags(&design, &diagnostics, thresholds));
     flags.extend(entanglement_flags(&design, &dimensions, thresholds));
+    flags.extend(claim_flags(&design, &diagnostics, thresholds));
     let orthogonalised = options.orthogonalise.then(|| {
         let serial = orthogonalise::serial(&design);
         let view = OrthogonalisedView::new(&serial, diagnose(&serial));

@@ -2,12 +2,15 @@
 
 use serde::Serialize;
 
-/// How much a flag matters. `note`s inform and never change a status; `caution` and
-/// `severe` follow the study's thresholds; `error` means a number could not be computed.
+/// How much a flag matters. `note`s inform; `warning`s say that a claim (e.g. one model
+/// beating another on a regressor) would not be supported — neither changes a status;
+/// `caution` and `severe` follow the study's thresholds; `error` means a number could not
+/// be computed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Severity {
     Note,
+    Warning,
     Caution,
     Severe,
     Error,
@@ -17,6 +20,7 @@ impl Severity {
     pub fn label(self) -> &'static str {
         match self {
             Severity::Note => "note",
+            Severity::Warning => "warning",
             Severity::Caution => "caution",
             Severity::Severe => "severe",
             Severity::Error => "error",

@@ -49,6 +49,7 @@ pub mod files;
 pub mod flags;
 pub mod forecast;
 pub mod output;
+pub mod partition;
 pub mod report;
 pub mod screen;
 pub mod study;

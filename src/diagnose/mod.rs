@@ -21,6 +21,7 @@ use nalgebra::DMatrix;
 
 use crate::design::{Design, RegressorKind};
 use crate::flags::{Flag, Severity};
+use crate::partition::{self, Group, ModelOverlap, RegressorPartition};
 
 /// A column whose filtered norm is below this fraction of its sampled norm lies
 /// (numerically) inside the drift space and carries no information.
@@ -41,6 +42,10 @@ pub struct Diagnostics {
     pub efficiency: Vec<Option<f64>>,
     /// Differences between corresponding modulators of two models.
     pub contrasts: Vec<Contrast>,
+    /// Each modulator's R² split into unique and shared parts (commonality analysis).
+    pub partition: Vec<RegressorPartition>,
+    /// Overlap of every pair of models after task and nuisance are partialled out.
+    pub model_overlap: Vec<ModelOverlap>,
     pub flags: Vec<Flag>,
 }
 
@@ -89,6 +94,8 @@ pub fn diagnose(design: &Design) -> Diagnostics {
         model_sets: model_sets(design, &core),
         efficiency: efficiency::own(count, &core.unit, &core.spectrum, &core.vif),
         contrasts: contrasts(design, &core),
+        partition: design_partition(design, &core),
+        model_overlap: model_overlaps(design, &core),
         dependencies: core.dependencies,
         vif: core.vif,
         flags,
@@ -273,6 +280,103 @@ fn contrasts(design: &Design, core: &Core) -> Vec<Contrast> {
                     variance_inflation: numbers.map(|n| n.1),
                 });
             }
+        }
+    }
+    result
+}
+
+/// The kept (independent) unit columns as a matrix.
+fn kept_matrix(core: &Core) -> DMatrix<f64> {
+    let kept = &core.spectrum.kept;
+    DMatrix::from_fn(core.unit.matrix.nrows(), kept.len(), |row, col| {
+        core.unit.matrix[(row, kept[col])]
+    })
+}
+
+/// The group a regressor belongs to in the partition: its model, the task, or nuisance.
+fn group_of(regressor: &crate::design::Regressor) -> String {
+    match (regressor.kind, &regressor.model) {
+        (RegressorKind::Modulator, Some(model)) => model.clone(),
+        (RegressorKind::Nuisance, _) => partition::NUISANCE.to_string(),
+        _ => partition::TASK.to_string(),
+    }
+}
+
+/// Groups of kept columns (positions among the kept), in the order models, task, nuisance.
+fn groups_without(design: &Design, core: &Core, left_out: Option<usize>) -> Vec<Group> {
+    let mut names: Vec<String> = model_names(design).iter().map(|m| m.to_string()).collect();
+    names.push(partition::TASK.into());
+    names.push(partition::NUISANCE.into());
+    names
+        .into_iter()
+        .map(|name| {
+            let members = core
+                .spectrum
+                .kept
+                .iter()
+                .enumerate()
+                .filter(|(_, a)| {
+                    let index = core.unit.indices[**a];
+                    Some(index) != left_out && group_of(&design.regressors[index]) == name
+                })
+                .map(|(position, _)| position)
+                .collect();
+            Group { name, members }
+        })
+        .filter(|group| !group.members.is_empty())
+        .collect()
+}
+
+fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
+    let kept = kept_matrix(core);
+    let gram = kept.transpose() * &kept;
+    design
+        .regressors
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| r.kind == RegressorKind::Modulator)
+        .map(|(index, regressor)| {
+            let (Some(position), Some(vif)) = (kept_position(core, index), core.vif[index]) else {
+                return RegressorPartition::undefined(&regressor.name, regressor.model.clone());
+            };
+            let groups = groups_without(design, core, Some(index));
+            match partition::partition(&gram, position, &groups) {
+                Some((r2, components)) => RegressorPartition {
+                    regressor: regressor.name.clone(),
+                    model: regressor.model.clone(),
+                    r2: Some(r2),
+                    unique: Some(1.0 / vif),
+                    shared_with: partition::shares_by_group(&groups, &components),
+                    components,
+                },
+                None => RegressorPartition::undefined(&regressor.name, regressor.model.clone()),
+            }
+        })
+        .collect()
+}
+
+fn model_overlaps(design: &Design, core: &Core) -> Vec<ModelOverlap> {
+    let kept = kept_matrix(core);
+    let groups = groups_without(design, core, None);
+    let controls: Vec<usize> = groups
+        .iter()
+        .filter(|g| g.name == partition::TASK || g.name == partition::NUISANCE)
+        .flat_map(|g| g.members.iter().copied())
+        .collect();
+    let models: Vec<&Group> = groups
+        .iter()
+        .filter(|g| g.name != partition::TASK && g.name != partition::NUISANCE)
+        .collect();
+    let mut result = Vec::new();
+    for (i, first) in models.iter().enumerate() {
+        for second in &models[i + 1..] {
+            let (canonical_correlations, explained) =
+                partition::overlap::overlap(&kept, &first.members, &second.members, &controls);
+            result.push(ModelOverlap {
+                models: [first.name.clone(), second.name.clone()],
+                canonical_correlations,
+                explained,
+            });
         }
     }
     result

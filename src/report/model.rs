@@ -8,6 +8,8 @@ use crate::diagnose::{
     Contrast, DEPENDENCY_TOLERANCE, Dependency, Diagnostics, ModelSet, TrialCorrelation,
 };
 use crate::flags::Flag;
+use crate::partition::cohort::CohortShare;
+use crate::partition::{ModelOverlap, RegressorPartition};
 use crate::screen::{EntangledDimension, Status, SubjectSummary, vif_status};
 use crate::study::{Study, Thresholds};
 
@@ -22,6 +24,10 @@ pub struct Report {
     pub runs: Vec<RunReport>,
     pub subjects: Vec<SubjectSummary>,
     pub cohort: Cohort,
+    /// Per modulator, the distribution over participants of its unique and shared shares.
+    pub cohort_partition: Vec<CohortShare>,
+    /// Why shared variance limits model comparisons, and what to do instead.
+    pub claims_note: &'static str,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -121,6 +127,9 @@ pub struct RunReport {
     /// Own-contrast efficiency of each regressor (design units; compare within a study only).
     pub efficiency: Vec<Option<f64>>,
     pub contrasts: Vec<Contrast>,
+    /// Each modulator's variance: unique, and shared with each group (commonality analysis).
+    pub partition: Vec<RegressorPartition>,
+    pub model_overlap: Vec<ModelOverlap>,
     /// Present with `--orthogonalise serial`: the same run with modulators orthogonalised.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub orthogonalised: Option<OrthogonalisedView>,
@@ -218,6 +227,8 @@ impl RunReport {
             model_sets: diagnostics.model_sets,
             efficiency: diagnostics.efficiency,
             contrasts: diagnostics.contrasts,
+            partition: diagnostics.partition,
+            model_overlap: diagnostics.model_overlap,
             orthogonalised: screening.orthogonalised,
             flags: screening.flags,
             status: screening.status,

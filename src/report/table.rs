@@ -37,6 +37,7 @@ pub fn render(report: &Report) -> String {
         text.push('\n');
     }
     text.push_str(&subject_table(report));
+    text.push_str(&cohort_partition(report));
     text.push_str(&format!(
         "\n{} ok, {} caution, {} severe (of {} participants)\n\n{}\n",
         report.cohort.ok,
@@ -45,6 +46,14 @@ pub fn render(report: &Report) -> String {
         report.cohort.subjects,
         READING_NOTES
     ));
+    let comparisons_unsupported = report
+        .runs
+        .iter()
+        .any(|r| r.flags.iter().any(|f| f.code == "shared_exceeds_unique"));
+    if comparisons_unsupported {
+        let note = wrap(report.claims_note, 90, "  ");
+        text.push_str(&format!("\nComparing models\n{note}\n"));
+    }
     if report.settings.orthogonalisation != "none" {
         let note = wrap(super::model::ORTHOGONALISATION_CAUTION, 90, "  ");
         text.push_str(&format!("\nAbout 'VIF serial'\n{note}\n"));
@@ -56,6 +65,35 @@ pub fn render(report: &Report) -> String {
 const COMPACT: TableStyle = TableStyle::new()
     .header_separator(LineStyle::none().fill('─').junction('─'))
     .bottom_border(LineStyle::none().fill('─').junction('─'));
+
+fn percent(share: f64) -> String {
+    format!("{:.1}%", 100.0 * share)
+}
+
+/// Per modulator: its unique share and what it shares, across participants.
+fn cohort_partition(report: &Report) -> String {
+    if report.cohort_partition.is_empty() {
+        return String::new();
+    }
+    let mut table = new_table(&["modulator", "part", "median", "range", "participants"]);
+    for share in &report.cohort_partition {
+        let part = if share.part == "unique" {
+            "own (unique)".to_string()
+        } else {
+            format!("shared with {}", share.part)
+        };
+        table.add_row(vec![
+            share.regressor.clone(),
+            part,
+            percent(share.median),
+            format!("{}–{}", percent(share.min), percent(share.max)),
+            share.participants.to_string(),
+        ]);
+    }
+    format!(
+        "\nShared and unique variance of each modulator (participant means over runs)\n{table}\n"
+    )
+}
 
 /// Greedy word wrap for notes printed in a terminal.
 fn wrap(text: &str, width: usize, indent: &str) -> String {
@@ -183,6 +221,53 @@ fn entanglement(run: &RunReport) -> String {
         .collect();
     if !sets.is_empty() {
         text.push_str(&format!("  model sets: {}\n", sets.join("; ")));
+    }
+    for partition in &run.partition {
+        let Some(unique) = partition.unique else {
+            text.push_str(&format!(
+                "  variance of {}: undefined (see the flags)\n",
+                partition.regressor
+            ));
+            continue;
+        };
+        let own_model = partition.model.as_deref().unwrap_or_default();
+        let shared: Vec<String> = partition
+            .shared_with
+            .iter()
+            .map(|g| {
+                let own = if g.group == own_model {
+                    " (own model)"
+                } else {
+                    ""
+                };
+                format!("with {}{own} {}", g.group, percent(g.share))
+            })
+            .collect();
+        text.push_str(&format!(
+            "  variance of {}: {} its own; shared {}\n",
+            partition.regressor,
+            percent(unique),
+            shared.join(", ")
+        ));
+    }
+    for overlap in &run.model_overlap {
+        let correlations: Vec<String> = overlap
+            .canonical_correlations
+            .iter()
+            .map(|r| format!("{r:.2}"))
+            .collect();
+        text.push_str(&format!(
+            "  models {} and {} (task and nuisance partialled out): canonical r {}; {} explains {} of {}'s set, {} explains {} of {}'s\n",
+            overlap.models[0],
+            overlap.models[1],
+            correlations.join(", "),
+            overlap.models[1],
+            percent(overlap.explained[0]),
+            overlap.models[0],
+            overlap.models[0],
+            percent(overlap.explained[1]),
+            overlap.models[1]
+        ));
     }
     for contrast in &run.contrasts {
         text.push_str(&format!(

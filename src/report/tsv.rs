@@ -49,7 +49,11 @@ pub fn render(report: &Report) -> Vec<TsvTable> {
         model_sets(report),
         contrasts(report),
         dependencies(report),
+        partition(report),
+        model_overlap(report),
         flags(report),
+        subjects(report),
+        cohort_partition(report),
     ]
 }
 
@@ -258,6 +262,129 @@ fn flags(report: &Report) -> TsvTable {
         }
     }
     table.done("flags")
+}
+
+fn partition(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "regressor",
+        "r2",
+        "unique",
+        "groups",
+        "share",
+    ]);
+    for run in &report.runs {
+        for partition in &run.partition {
+            for component in &partition.components {
+                table.row(
+                    run,
+                    vec![
+                        partition.regressor.clone(),
+                        exact(partition.r2),
+                        exact(partition.unique),
+                        component.groups.join("+"),
+                        component.share.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("partition")
+}
+
+fn model_overlap(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject",
+        "run",
+        "first",
+        "second",
+        "canonical_correlations",
+        "first_explained_by_second",
+        "second_explained_by_first",
+    ]);
+    for run in &report.runs {
+        for overlap in &run.model_overlap {
+            let correlations: Vec<String> = overlap
+                .canonical_correlations
+                .iter()
+                .map(f64::to_string)
+                .collect();
+            table.row(
+                run,
+                vec![
+                    overlap.models[0].clone(),
+                    overlap.models[1].clone(),
+                    correlations.join(","),
+                    overlap.explained[0].to_string(),
+                    overlap.explained[1].to_string(),
+                ],
+            );
+        }
+    }
+    table.done("model_overlap")
+}
+
+/// Tables of the whole cohort have no run columns.
+fn plain_table(header: &[&str], rows: Vec<Vec<String>>, name: &'static str) -> TsvTable {
+    let mut text = format!("{}\n", header.join("\t"));
+    for row in rows {
+        let cells: Vec<String> = row.iter().map(|c| clean(c)).collect();
+        text.push_str(&cells.join("\t"));
+        text.push('\n');
+    }
+    TsvTable { name, text }
+}
+
+fn subjects(report: &Report) -> TsvTable {
+    let rows = report
+        .subjects
+        .iter()
+        .map(|s| {
+            vec![
+                s.subject.clone(),
+                exact(s.worst_vif),
+                text(&s.worst_regressor),
+                text(&s.worst_run),
+                s.status.label().to_string(),
+                s.runs_flagged.join(","),
+            ]
+        })
+        .collect();
+    plain_table(
+        &[
+            "subject",
+            "worst_vif",
+            "worst_regressor",
+            "worst_run",
+            "status",
+            "runs_flagged",
+        ],
+        rows,
+        "subjects",
+    )
+}
+
+fn cohort_partition(report: &Report) -> TsvTable {
+    let rows = report
+        .cohort_partition
+        .iter()
+        .map(|c| {
+            vec![
+                c.regressor.clone(),
+                c.part.clone(),
+                c.participants.to_string(),
+                c.median.to_string(),
+                c.min.to_string(),
+                c.max.to_string(),
+            ]
+        })
+        .collect();
+    plain_table(
+        &["regressor", "part", "participants", "median", "min", "max"],
+        rows,
+        "cohort_partition",
+    )
 }
 
 /// Tabs and line breaks inside a cell would break the table.

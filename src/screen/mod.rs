@@ -31,7 +31,7 @@ impl Status {
 
     fn of(severity: Severity) -> Status {
         match severity {
-            Severity::Note => Status::Ok,
+            Severity::Note | Severity::Warning => Status::Ok,
             Severity::Caution => Status::Caution,
             Severity::Severe | Severity::Error => Status::Severe,
         }
@@ -195,6 +195,50 @@ pub fn entanglement_flags(
             )
         })
         .collect()
+}
+
+/// Plain words said by every report in which a model comparison would not be supported.
+pub const CLAIMS_NOTE: &str = "Where a modulator shares more of its variance with another model than it keeps for itself, the data cannot show which of the two models the brain follows: the two betas, t-maps or explained variances are estimated from largely the same part of the signal, so whichever model 'wins' may win on noise in the small part that is its own. Instead: compare the models on behaviour first; compare whole GLMs on held-out data (e.g. cross-validated across runs); change the task so the models disagree (forecast the design before scanning); and report the shared share beside any model comparison.";
+
+/// One warning per modulator and other model whose shared variance exceeds the
+/// modulator's own share `shared_over_unique` times.
+pub fn claim_flags(
+    design: &Design,
+    diagnostics: &Diagnostics,
+    thresholds: &Thresholds,
+) -> Vec<Flag> {
+    let mut flags = Vec::new();
+    for partition in &diagnostics.partition {
+        let Some(unique) = partition.unique else {
+            continue;
+        };
+        let own_model = partition.model.clone();
+        for share in &partition.shared_with {
+            let is_other_model = design
+                .regressors
+                .iter()
+                .any(|r| r.model.as_deref() == Some(share.group.as_str()))
+                && own_model.as_deref() != Some(share.group.as_str());
+            if !is_other_model || share.share <= thresholds.shared_over_unique * unique {
+                continue;
+            }
+            let own = own_model.as_deref().unwrap_or("its model");
+            flags.push(Flag::new(
+                Severity::Warning,
+                "shared_exceeds_unique",
+                vec![partition.regressor.clone()],
+                format!(
+                    "{} shares {:.0}% of its variance with model {} and keeps only {:.0}% for itself: comparing {own} and {} on this regressor (betas, t-maps, explained variance) cannot show which model the signal follows",
+                    partition.regressor,
+                    100.0 * share.share,
+                    share.group,
+                    100.0 * unique,
+                    share.group
+                ),
+            ));
+        }
+    }
+    flags
 }
 
 /// The worst status any flag earns.

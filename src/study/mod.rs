@@ -116,6 +116,9 @@ pub struct Thresholds {
     pub condition_index: f64,
     /// Above this a near-dependency is severe (common practice: 100).
     pub condition_index_severe: f64,
+    /// A modulator whose variance shared with another model exceeds this many times its
+    /// unique share gets a warning against comparing the two models on it.
+    pub shared_over_unique: f64,
 }
 
 impl Default for Thresholds {
@@ -125,6 +128,7 @@ impl Default for Thresholds {
             vif_severe: 10.0,
             condition_index: 30.0,
             condition_index_severe: 100.0,
+            shared_over_unique: 1.0,
         }
     }
 }

@@ -303,6 +303,18 @@ impl Reader<'_> {
         for (table, span) in entries {
             self.check_keys(table, "model", schema::keys_of("model"));
             let name = self.required_name(table, "model", span.clone(), &mut names);
+            let name = match name {
+                Some(name) if schema::RESERVED_MODEL_NAMES.contains(&name.as_str()) => {
+                    let span = get(table, "name").map_or(span.clone(), |v| v.span());
+                    self.problem_with_hint(
+                        span,
+                        format!("\"{name}\" cannot name a model: the variance partition uses it for a group of regressors"),
+                        "choose another name".into(),
+                    );
+                    None
+                }
+                other => other,
+            };
             let modulators = self.modulators(table, span, &event_names);
             match (name, modulators) {
                 (Some(name), Some(modulators)) => models.push(ModelSpec { name, modulators }),
@@ -428,6 +440,7 @@ impl Reader<'_> {
             "condition_index_severe",
             defaults.condition_index_severe,
         );
+        let shared_over_unique = positive(self, "shared_over_unique", defaults.shared_over_unique);
         let (caution, severe) = (caution?, severe?);
         if caution > severe {
             let span = get(table, "vif_caution").map_or(0..0, |v| v.span());
@@ -453,6 +466,7 @@ impl Reader<'_> {
             vif_severe: severe,
             condition_index: index,
             condition_index_severe: index_severe,
+            shared_over_unique: shared_over_unique?,
         })
     }
 

@@ -13,6 +13,9 @@ pub const TOP_LEVEL: &[&str] = &[
     "thresholds",
 ];
 
+/// Group names of the variance partition, which a model may not take.
+pub const RESERVED_MODEL_NAMES: &[&str] = &["task", "nuisance", "unique"];
+
 /// Keys allowed inside each section (arrays of tables use the same list for every entry).
 pub fn keys_of(section: &str) -> &'static [&'static str] {
     match section {

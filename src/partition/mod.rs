@@ -1,0 +1,130 @@
+//! Shared versus unique variance: each modulator's R² on the rest of the design split
+//! by commonality analysis over groups of regressors (models, task timing, nuisance),
+//! the overlap of whole models, and (with measured signals) each model's unique and
+//! shared share of a region's explained variance.
+
+pub mod cohort;
+pub mod commonality;
+pub mod gram;
+pub mod overlap;
+
+pub use overlap::ModelOverlap;
+
+use nalgebra::DMatrix;
+use serde::Serialize;
+
+/// Group of the onset and derivative regressors: the task's timing.
+pub const TASK: &str = "task";
+pub const NUISANCE: &str = "nuisance";
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Component {
+    pub groups: Vec<String>,
+    pub share: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GroupShare {
+    pub group: String,
+    /// Sum of the components that include this group (parts also shared with other
+    /// groups are counted for each of them).
+    pub share: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RegressorPartition {
+    pub regressor: String,
+    /// The regressor's own model (its fellow modulators form the group of that name).
+    pub model: Option<String>,
+    /// Share of the regressor's variance explained by all the other regressors.
+    pub r2: Option<f64>,
+    /// 1 − r2 = 1/VIF: the regressor's own share.
+    pub unique: Option<f64>,
+    /// Sum to `r2`; may be negative (suppression).
+    pub components: Vec<Component>,
+    pub shared_with: Vec<GroupShare>,
+}
+
+impl RegressorPartition {
+    pub fn undefined(regressor: &str, model: Option<String>) -> Self {
+        RegressorPartition {
+            regressor: regressor.to_string(),
+            model,
+            r2: None,
+            unique: None,
+            components: Vec::new(),
+            shared_with: Vec::new(),
+        }
+    }
+
+    pub fn shared_with(&self, group: &str) -> Option<f64> {
+        self.shared_with
+            .iter()
+            .find(|g| g.group == group)
+            .map(|g| g.share)
+    }
+}
+
+/// A named group of predictors: positions of columns in a Gram matrix.
+#[derive(Debug, Clone)]
+pub struct Group {
+    pub name: String,
+    pub members: Vec<usize>,
+}
+
+/// Commonality components of column `target`'s R² on the union of `groups`, all subset
+/// R² taken from blocks of `gram`. `None` if a block is singular.
+pub fn partition(
+    gram: &DMatrix<f64>,
+    target: usize,
+    groups: &[Group],
+) -> Option<(f64, Vec<Component>)> {
+    let union = |mask: u32| -> Vec<usize> {
+        groups
+            .iter()
+            .enumerate()
+            .filter(|(g, _)| mask & (1 << g) != 0)
+            .flat_map(|(_, group)| group.members.iter().copied())
+            .collect()
+    };
+    let all: u32 = (1u32 << groups.len()) - 1;
+    let mut r2_cache = vec![None; all as usize + 1];
+    for mask in 1..=all {
+        r2_cache[mask as usize] = Some(gram::r_squared(gram, target, &union(mask))?);
+    }
+    let full = if groups.is_empty() {
+        0.0
+    } else {
+        r2_cache[all as usize]?
+    };
+    let parts =
+        commonality::components(groups.len(), |mask| r2_cache[mask as usize].unwrap_or(0.0));
+    let components = parts
+        .into_iter()
+        .map(|(mask, share)| Component {
+            groups: groups
+                .iter()
+                .enumerate()
+                .filter(|(g, _)| mask & (1 << g) != 0)
+                .map(|(_, group)| group.name.clone())
+                .collect(),
+            share,
+        })
+        .collect();
+    Some((full, components))
+}
+
+/// Per group, the sum of the components that include it.
+pub fn shares_by_group(groups: &[Group], components: &[Component]) -> Vec<GroupShare> {
+    groups
+        .iter()
+        .map(|group| GroupShare {
+            group: group.name.clone(),
+            share: components
+                .iter()
+                .filter(|c| c.groups.contains(&group.name))
+                .map(|c| c.share)
+                .sum(),
+        })
+        .collect()
+}
