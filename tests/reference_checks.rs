@@ -351,3 +351,91 @@ fn efficiency_of_a_hand_checkable_design() {
     // Uncorrelated columns of the same sizes would give 1/4 + 1/2 = 0.75: 2.5 / 0.75.
     assert_relative_eq!(inflation, 2.5 / 0.75, max_relative = 1e-12);
 }
+
+fn assert_components(got: &[tangle::partition::Component], want: &Value, tolerance: f64) {
+    let want = want.as_array().unwrap();
+    assert_eq!(got.len(), want.len());
+    for (got, want) in got.iter().zip(want) {
+        assert_eq!(got.groups, strings(&want["groups"]));
+        let expected = want["share"].as_f64().unwrap();
+        assert!(
+            (got.share - expected).abs() < tolerance,
+            "{:?}: {} vs {expected}",
+            got.groups,
+            got.share
+        );
+    }
+}
+
+#[test]
+fn commonality_components_match_statsmodels_fits_of_every_subset() {
+    // Each subset R² refitted by statsmodels OLS (tests/reference/make_references.py); ours
+    // come from blocks of one Gram matrix. Longley: TOTEMP on A = {GNPDEFL, GNP},
+    // B = {UNEMP, ARMED}, C = {POP, YEAR}; the full R² is the NIST certified 0.995479004577296.
+    let expected = json("commonality.json");
+    let (headers, columns) = longley();
+    let column = |name: &str| columns[headers.iter().position(|h| h == name).unwrap()].clone();
+    let groups = [
+        ("A", vec![column("GNPDEFL"), column("GNP")]),
+        ("B", vec![column("UNEMP"), column("ARMED")]),
+        ("C", vec![column("POP"), column("YEAR")]),
+    ];
+    let (r2, components) =
+        tangle::partition::partition_with_intercept(&column("TOTEMP"), &groups).unwrap();
+    assert_relative_eq!(r2, 0.995479004577296, max_relative = 1e-10);
+    assert_components(&components, &expected["longley"]["components"], 1e-9);
+    let total: f64 = components.iter().map(|c| c.share).sum();
+    assert_relative_eq!(total, r2, max_relative = 1e-12);
+}
+
+#[test]
+fn the_design_partition_matches_statsmodels_on_the_fixture() {
+    // a:a_pe of the fixture design on groups a (its fellow modulator), b, task.
+    let expected = &json("commonality.json")["design_fixture"];
+    let path = reference("design_fixture/study.toml");
+    let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
+    let run = &report.runs[0];
+    let partition = run
+        .partition
+        .iter()
+        .find(|p| p.regressor == "a:a_pe")
+        .unwrap();
+    assert_relative_eq!(
+        partition.r2.unwrap(),
+        expected["r2"].as_f64().unwrap(),
+        max_relative = 1e-9
+    );
+    assert_components(&partition.components, &expected["components"], 1e-10);
+    // Identity: unique = 1 − R² = 1/VIF.
+    let vif = run.vif[3].unwrap();
+    assert_relative_eq!(partition.unique.unwrap(), 1.0 / vif, max_relative = 1e-12);
+    assert_relative_eq!(
+        partition.unique.unwrap() + partition.r2.unwrap(),
+        1.0,
+        max_relative = 1e-10
+    );
+}
+
+#[test]
+fn model_overlap_matches_numpy_canonical_correlations() {
+    // numpy QR + SVD after projecting out the task columns; shares from statsmodels OLS R².
+    let expected = &json("commonality.json")["design_fixture_overlap"];
+    let path = reference("design_fixture/study.toml");
+    let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
+    let overlap = &report.runs[0].model_overlap[0];
+    assert_eq!(overlap.models, ["a", "b"]);
+    for (got, want) in overlap
+        .canonical_correlations
+        .iter()
+        .zip(numbers(&expected["canonical_correlations"]))
+    {
+        assert_relative_eq!(*got, want, max_relative = 1e-9);
+    }
+    for (got, want) in overlap
+        .explained
+        .iter()
+        .zip(numbers(&expected["explained"]))
+    {
+        assert_relative_eq!(*got, want, max_relative = 1e-9);
+    }
+}

@@ -128,3 +128,33 @@ pub fn shares_by_group(groups: &[Group], components: &[Component]) -> Vec<GroupS
         })
         .collect()
 }
+
+/// Commonality partition of `target`'s R² on named groups of raw predictor columns, in a
+/// regression with an intercept (every column is centred first).
+pub fn partition_with_intercept(
+    target: &[f64],
+    groups: &[(&str, Vec<Vec<f64>>)],
+) -> Option<(f64, Vec<Component>)> {
+    let mut columns = vec![target.to_vec()];
+    let mut named = Vec::new();
+    for (name, members) in groups {
+        let start = columns.len();
+        columns.extend(members.iter().cloned());
+        named.push(Group {
+            name: name.to_string(),
+            members: (start..columns.len()).collect(),
+        });
+    }
+    let rows = target.len();
+    let unit: Vec<Vec<f64>> = columns
+        .iter()
+        .map(|column| {
+            let mean = column.iter().sum::<f64>() / rows as f64;
+            let centred: Vec<f64> = column.iter().map(|v| v - mean).collect();
+            let norm = centred.iter().map(|v| v * v).sum::<f64>().sqrt();
+            centred.iter().map(|v| v / norm).collect()
+        })
+        .collect();
+    let matrix = DMatrix::from_fn(rows, unit.len(), |r, c| unit[c][r]);
+    partition(&(matrix.transpose() * &matrix), 0, &named)
+}

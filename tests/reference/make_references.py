@@ -16,6 +16,8 @@ Files
   design_fixture/study.toml    a tiny study file the Rust tool reads
   design_fixture/trials.csv    its trial table (input; drawn once, then the source of truth)
   design_fixture/expected.json the design those files imply, built densely with numpy
+  commonality.json             commonality components from statsmodels OLS R2 of every subset
+                               (Longley data; the fixture design's a:a_pe)
   demo_vif.json                VIFs of every run of the bundled demo study (demo-data/),
                                design built densely with numpy, VIFs by statsmodels
 """
@@ -566,6 +568,89 @@ def fixture_references(out: Path) -> list[str]:
     return ["design_fixture/study.toml", "design_fixture/expected.json"]
 
 
+# --------------------------------------------------------------------------- commonality
+
+def ols_r2(target, predictors) -> float:
+    """R2 of statsmodels OLS of target on a constant plus the predictor columns."""
+    if predictors.shape[1] == 0:
+        return 0.0
+    return float(sm.OLS(target, sm.add_constant(predictors, has_constant="add")).fit().rsquared)
+
+
+def commonality_table(target, groups: dict) -> dict:
+    """Every subset R2 by a separate statsmodels OLS fit, and the commonality components
+    C(S) = sum over B in S of (-1)^(|S|-|B|+1) R2(K minus B) (Mood 1969; Seibold & McPhee 1979)."""
+    names = list(groups)
+    k = len(names)
+    r2 = {}
+    for mask in range(1 << k):
+        cols = [c for g, name in enumerate(names) if mask >> g & 1 for c in groups[name]]
+        r2[mask] = ols_r2(target, np.column_stack(cols) if cols else np.empty((len(target), 0)))
+    full = (1 << k) - 1
+    components = []
+    for mask in range(1, full + 1):
+        share, sub = 0.0, mask
+        while True:
+            sign = 1.0 if (bin(mask).count("1") - bin(sub).count("1") + 1) % 2 == 0 else -1.0
+            share += sign * r2[full & ~sub]
+            if sub == 0:
+                break
+            sub = (sub - 1) & mask
+        components.append({"groups": [n for g, n in enumerate(names) if mask >> g & 1], "share": share})
+    check(abs(sum(c["share"] for c in components) - r2[full]) < 1e-12, "commonality components do not sum to R2")
+    return {"groups": names, "subset_r2": {"+".join(n for g, n in enumerate(names) if m >> g & 1) or "(none)": v
+                                           for m, v in r2.items()},
+            "r2": r2[full], "components": components}
+
+
+def commonality_references(out: Path) -> list[str]:
+    data = longley_frame()
+    longley = commonality_table(data["TOTEMP"].to_numpy(float), {
+        "A": [data[c].to_numpy(float) for c in ("GNPDEFL", "GNP")],
+        "B": [data[c].to_numpy(float) for c in ("UNEMP", "ARMED")],
+        "C": [data[c].to_numpy(float) for c in ("POP", "YEAR")],
+    })
+    check(abs(longley["r2"] - 0.995479004577296) < 1e-12, "Longley R2 differs from the NIST certified value")
+    design = build_design(read_trials(out / "design_fixture" / "trials.csv"))
+    filtered = {name: np.asarray(col) for name, col in zip(design["names"], design["filtered"])}
+    fixture = commonality_table(filtered["a:a_pe"], {
+        "a": [filtered["a:a_value"]],
+        "b": [filtered["b:b_pe"]],
+        "task": [filtered["cue"], filtered["outcome"]],
+    })
+    # Model overlap: canonical correlations (numpy QR + SVD) between model a's set
+    # {a:a_value, a:a_pe} and model b's {b:b_pe} after the task columns are projected out,
+    # and the mean R2 (statsmodels OLS) of each set's columns on the other set.
+    task = np.column_stack([filtered["cue"], filtered["outcome"]])
+    def partial(cols):
+        block = np.column_stack(cols)
+        return block - task @ np.linalg.lstsq(task, block, rcond=None)[0]
+    set_a, set_b = partial([filtered["a:a_value"], filtered["a:a_pe"]]), partial([filtered["b:b_pe"]])
+    qa, qb = np.linalg.qr(set_a)[0], np.linalg.qr(set_b)[0]
+    canonical = np.linalg.svd(qa.T @ qb, compute_uv=False)
+    explained_a = np.mean([ols_r2(set_a[:, j], set_b) for j in range(set_a.shape[1])])
+    explained_b = np.mean([ols_r2(set_b[:, j], set_a) for j in range(set_b.shape[1])])
+    overlap = {"models": ["a", "b"], "canonical_correlations": floats(canonical),
+               "explained": [float(explained_a), float(explained_b)]}
+    vif = dict(zip(design["names"], design["vif"]))["a:a_pe"]
+    check(abs((1 - fixture["r2"]) - 1 / vif) < 1e-10, "fixture: unique share differs from 1/VIF")
+    ver = versions()
+    write_json(out / "commonality.json", {
+        "source": (f"statsmodels {ver['statsmodels']} OLS (with a constant) fitted separately for every "
+                   "subset of groups; components by the commonality formula of Mood (1969) / Seibold & "
+                   "McPhee (1979). longley: TOTEMP on A = {GNPDEFL, GNP}, B = {UNEMP, ARMED}, "
+                   "C = {POP, YEAR} (full R2 = NIST certified 0.995479004577296). design_fixture: the "
+                   "filtered a:a_pe column of design_fixture/expected.json on groups a = {a:a_value}, "
+                   "b = {b:b_pe}, task = {cue, outcome}; design_fixture_overlap: numpy QR + SVD canonical "
+                   "correlations of {a:a_value, a:a_pe} and {b:b_pe} after the task columns are projected "
+                   "out (numpy lstsq), and statsmodels OLS R2 of each set's columns on the other set"),
+        "longley": longley,
+        "design_fixture": {"target": "a:a_pe", **fixture},
+        "design_fixture_overlap": overlap,
+    })
+    return ["commonality.json"]
+
+
 # --------------------------------------------------------------------------- demo study
 
 def demo_references(out: Path) -> list[str]:
@@ -637,6 +722,7 @@ def generate(out: Path) -> list[str]:
     files += longley_references(out)
     files += hrf_references(out)
     files += fixture_references(out)
+    files += commonality_references(out)
     files += demo_references(out)
     return files
 
