@@ -10,7 +10,8 @@ use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
 use crate::error::{Problems, Result};
 use crate::files::{InputFiles, read_text};
-use crate::partition::cohort;
+use crate::partition::signal::BootstrapSettings;
+use crate::partition::{cohort, signal};
 use crate::report::model::{
     Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
 };
@@ -19,14 +20,19 @@ use crate::screen::{
     summarise_subjects, vif_flags,
 };
 use crate::study::{Study, parse_study};
-use crate::trials::{RunTrials, ScanTable, Table, collect_runs, read_nuisance};
+use crate::trials::{
+    RunTrials, ScanTable, Table, collect_runs, fill_template, read_nuisance, read_per_scan,
+};
 
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone)]
 pub struct CheckOptions {
     /// Mean-centre parametric modulators (default true; off shows what centring does).
     pub centre: bool,
     /// Also show the run with modulators serially orthogonalised, side by side.
     pub orthogonalise: bool,
+    /// Path template (`{subject}`, `{run}`) of measured signals to partition, if any.
+    pub signal: Option<String>,
+    pub bootstrap: BootstrapSettings,
 }
 
 impl Default for CheckOptions {
@@ -34,6 +40,8 @@ impl Default for CheckOptions {
         CheckOptions {
             centre: true,
             orthogonalise: false,
+            signal: None,
+            bootstrap: BootstrapSettings::default(),
         }
     }
 }
@@ -50,6 +58,7 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
     let table = Table::read(files, &study.trials.file)?;
     let runs = collect_runs(study, &table, &scans)?;
     let settings = DesignSettings::new(study, options.centre);
+    let options = &options;
     let results: Vec<Result<RunReport>> = runs
         .par_iter()
         .map(|run| check_run(files, study, &settings, run, options))
@@ -101,7 +110,7 @@ fn check_run(
     study: &Study,
     settings: &DesignSettings,
     run: &RunTrials,
-    options: CheckOptions,
+    options: &CheckOptions,
 ) -> Result<RunReport> {
     let nuisance = match &study.nuisance {
         Some(spec) => Some(read_nuisance(
@@ -132,7 +141,32 @@ fn check_run(
         flags.extend(absorbed);
         view
     });
+    let signal = match &options.signal {
+        Some(template) => {
+            let path = fill_template(template, &run.subject, &run.run);
+            let table = read_per_scan(
+                files,
+                &path,
+                &[],
+                run.scans,
+                &run.subject,
+                &run.run,
+                "signal",
+            )?;
+            let regions = signal::partition_signals(
+                settings,
+                &design,
+                &diagnostics,
+                &table,
+                options.bootstrap,
+            );
+            flags.extend(signal::uncertainty_flags(&regions));
+            regions
+        }
+        None => Vec::new(),
+    };
     let screening = RunScreening {
+        signal,
         entangled_dimensions: dimensions,
         status: run_status(&flags),
         flags,

@@ -54,6 +54,17 @@ pub struct OutputArgs {
     /// side by side with the design as written (statuses stay those of the latter).
     #[arg(long, value_enum, value_name = "METHOD", default_value_t = Orthogonalise::None)]
     pub orthogonalise: Orthogonalise,
+    /// Measured signals to partition into model-unique and shared variance: a path
+    /// template with {subject} and {run}, e.g. "roi/sub-{subject}_run-{run}.tsv" (one row
+    /// per scan, one column per region of interest).
+    #[arg(long, value_name = "TEMPLATE")]
+    pub signal: Option<String>,
+    /// Bootstrap resamples for the signal partition's intervals.
+    #[arg(long, value_name = "N", default_value_t = 500)]
+    pub resamples: usize,
+    /// Seed of the bootstrap (the same seed gives the same intervals).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

@@ -8,6 +8,7 @@ use tangle::check::{CheckOptions, check_file};
 use tangle::cli::{Cli, Command, FailOn, Format, Orthogonalise, OutputArgs};
 use tangle::error::Error;
 use tangle::files::DiskFiles;
+use tangle::partition::signal::BootstrapSettings;
 use tangle::report::{self, Report};
 use tangle::screen::Status;
 
@@ -43,6 +44,11 @@ fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
         centre: !output.no_centring,
         orthogonalise: output.orthogonalise == Orthogonalise::Serial,
+        signal: output.signal.clone(),
+        bootstrap: BootstrapSettings {
+            resamples: output.resamples,
+            seed: output.seed,
+        },
     }
 }
 

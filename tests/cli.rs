@@ -563,3 +563,107 @@ fn serial_orthogonalisation_is_shown_beside_the_design_as_written() {
     .unwrap();
     assert!(table.contains("VIF serial") && table.contains("About 'VIF serial'"));
 }
+
+#[test]
+fn demo_claim_warnings_appear_exactly_where_the_shared_share_dominates() {
+    let output = assert_cmd::Command::cargo_bin("tangle")
+        .unwrap()
+        .args(["demo", "--format", "json"])
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let report: Value = serde_json::from_slice(&output).unwrap();
+    let mut warned = 0;
+    for run in report["runs"].as_array().unwrap() {
+        for partition in run["partition"].as_array().unwrap() {
+            let name = partition["regressor"].as_str().unwrap();
+            let own = partition["model"].as_str().unwrap();
+            let unique = partition["unique"].as_f64().unwrap();
+            // Components sum to R², and R² + unique = 1.
+            let total: f64 = partition["components"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|c| c["share"].as_f64().unwrap())
+                .sum();
+            assert!((total - partition["r2"].as_f64().unwrap()).abs() < 1e-9);
+            assert!((partition["r2"].as_f64().unwrap() + unique - 1.0).abs() < 1e-9);
+            let dominated = partition["shared_with"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .any(|g| {
+                    g["group"] != own
+                        && g["group"] != "task"
+                        && g["group"] != "nuisance"
+                        && g["share"].as_f64().unwrap() > unique
+                });
+            let flagged = run["flags"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .any(|f| f["code"] == "shared_exceeds_unique" && f["regressors"][0] == name);
+            assert_eq!(
+                dominated, flagged,
+                "subject {} run {} {name}",
+                run["subject"], run["run"]
+            );
+            warned += usize::from(flagged);
+        }
+    }
+    assert!(warned > 0);
+    assert!(
+        report["claims_note"]
+            .as_str()
+            .unwrap()
+            .contains("held-out data")
+    );
+    let cohort = report["cohort_partition"].as_array().unwrap();
+    assert!(
+        cohort
+            .iter()
+            .any(|c| c["regressor"] == "delta:delta_pe" && c["part"] == "hybrid")
+    );
+}
+
+#[test]
+fn signal_option_partitions_each_region_from_the_command_line() {
+    let dir = timing_study(|rng| rng.uniform(2.0, 6.0));
+    let study = std::fs::read_to_string(dir.path("study.toml")).unwrap();
+    let scans: usize = study
+        .lines()
+        .find_map(|l| l.strip_prefix("scans = "))
+        .unwrap()
+        .parse()
+        .unwrap();
+    let mut rng = Lcg(11);
+    let mut text = String::from("left\tright\n");
+    for _ in 0..scans {
+        text.push_str(&format!(
+            "{}\t{}\n",
+            rng.uniform(-1.0, 1.0),
+            rng.uniform(-1.0, 1.0)
+        ));
+    }
+    dir.file("roi/sub-01_run-1.tsv", &text);
+    let report = dir.json(&[
+        "--signal",
+        "roi/sub-{subject}_run-{run}.tsv",
+        "--resamples",
+        "50",
+    ]);
+    let regions: Vec<&str> = report["runs"][0]["signal"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["region"].as_str().unwrap())
+        .collect();
+    assert_eq!(regions, ["left", "right"]);
+    dir.check(&["--signal", "roi/missing-{run}.tsv"])
+        .code(1)
+        .stderr(predicate::str::contains(
+            "missing-1.tsv: cannot read the file",
+        ));
+}

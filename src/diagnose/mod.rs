@@ -46,6 +46,8 @@ pub struct Diagnostics {
     pub partition: Vec<RegressorPartition>,
     /// Overlap of every pair of models after task and nuisance are partialled out.
     pub model_overlap: Vec<ModelOverlap>,
+    /// Design indices of the independent columns every number above is computed on.
+    pub analysed: Vec<usize>,
     pub flags: Vec<Flag>,
 }
 
@@ -96,6 +98,12 @@ pub fn diagnose(design: &Design) -> Diagnostics {
         contrasts: contrasts(design, &core),
         partition: design_partition(design, &core),
         model_overlap: model_overlaps(design, &core),
+        analysed: core
+            .spectrum
+            .kept
+            .iter()
+            .map(|&a| core.unit.indices[a])
+            .collect(),
         dependencies: core.dependencies,
         vif: core.vif,
         flags,

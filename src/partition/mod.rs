@@ -7,6 +7,7 @@ pub mod cohort;
 pub mod commonality;
 pub mod gram;
 pub mod overlap;
+pub mod signal;
 
 pub use overlap::ModelOverlap;
 

@@ -9,6 +9,7 @@ use crate::diagnose::{
 };
 use crate::flags::Flag;
 use crate::partition::cohort::CohortShare;
+use crate::partition::signal::RegionPartition;
 use crate::partition::{ModelOverlap, RegressorPartition};
 use crate::screen::{EntangledDimension, Status, SubjectSummary, vif_status};
 use crate::study::{Study, Thresholds};
@@ -130,6 +131,9 @@ pub struct RunReport {
     /// Each modulator's variance: unique, and shared with each group (commonality analysis).
     pub partition: Vec<RegressorPartition>,
     pub model_overlap: Vec<ModelOverlap>,
+    /// With `--signal`: each region's variance split into model-unique and shared parts.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub signal: Vec<RegionPartition>,
     /// Present with `--orthogonalise serial`: the same run with modulators orthogonalised.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub orthogonalised: Option<OrthogonalisedView>,
@@ -174,6 +178,7 @@ impl OrthogonalisedView {
 
 /// What a run report holds besides the design and its diagnostics.
 pub struct RunScreening {
+    pub signal: Vec<RegionPartition>,
     pub entangled_dimensions: Vec<EntangledDimension>,
     pub flags: Vec<Flag>,
     pub status: Status,
@@ -229,6 +234,7 @@ impl RunReport {
             contrasts: diagnostics.contrasts,
             partition: diagnostics.partition,
             model_overlap: diagnostics.model_overlap,
+            signal: screening.signal,
             orthogonalised: screening.orthogonalised,
             flags: screening.flags,
             status: screening.status,

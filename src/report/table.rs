@@ -269,6 +269,32 @@ fn entanglement(run: &RunReport) -> String {
             overlap.models[1]
         ));
     }
+    for region in &run.signal {
+        let parts: Vec<String> = region
+            .components
+            .iter()
+            .map(|c| {
+                let label = if c.groups.len() == 1 {
+                    format!("unique to {}", c.groups[0])
+                } else {
+                    format!("shared by {}", c.groups.join("+"))
+                };
+                format!(
+                    "{label} {} [{} to {}]",
+                    percent(c.share),
+                    percent(c.low),
+                    percent(c.high)
+                )
+            })
+            .collect();
+        text.push_str(&format!(
+            "  region {}: the design explains {} of its variance (task and nuisance alone {}); {}\n",
+            region.region,
+            percent(region.r2),
+            percent(region.r2_base),
+            parts.join(", ")
+        ));
+    }
     for contrast in &run.contrasts {
         text.push_str(&format!(
             "  difference {}: variance {}× that of two uncorrelated regressors\n",

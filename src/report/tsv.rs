@@ -51,6 +51,7 @@ pub fn render(report: &Report) -> Vec<TsvTable> {
         dependencies(report),
         partition(report),
         model_overlap(report),
+        signal(report),
         flags(report),
         subjects(report),
         cohort_partition(report),
@@ -323,6 +324,31 @@ fn model_overlap(report: &Report) -> TsvTable {
         }
     }
     table.done("model_overlap")
+}
+
+fn signal(report: &Report) -> TsvTable {
+    let mut table = Builder::new(&[
+        "subject", "run", "region", "r2", "r2_base", "groups", "share", "low", "high",
+    ]);
+    for run in &report.runs {
+        for region in &run.signal {
+            for c in &region.components {
+                table.row(
+                    run,
+                    vec![
+                        region.region.clone(),
+                        region.r2.to_string(),
+                        region.r2_base.to_string(),
+                        c.groups.join("+"),
+                        c.share.to_string(),
+                        c.low.to_string(),
+                        c.high.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("signal")
 }
 
 /// Tables of the whole cohort have no run columns.

@@ -1,13 +1,13 @@
 //! Trial tables and nuisance tables → the trials of each run.
 
 mod labels;
-mod nuisance;
+mod per_scan;
 mod runs;
 mod scans;
 mod table;
 
 pub use labels::check_label;
-pub use nuisance::{NuisanceTable, read_nuisance};
+pub use per_scan::{NuisanceTable, PerScanTable, fill_template, read_nuisance, read_per_scan};
 pub use runs::{EventTrials, ModulatorValues, RunTrials, collect_runs};
 pub use scans::ScanTable;
 pub use table::{Row, Table, is_missing};
