@@ -85,6 +85,11 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
         })
         .collect();
     let subjects = summarise_subjects(&outcomes);
+    let by_run: Vec<(&str, &[_])> = reports
+        .iter()
+        .map(|r| (r.subject.as_str(), r.partition.as_slice()))
+        .collect();
+    let subject_partition = cohort::participant_means(&by_run);
     Ok(Report {
         tool: ToolInfo::default(),
         study: StudyInfo {
@@ -93,12 +98,8 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
         },
         settings: Settings::new(study, options.centre, options.orthogonalise),
         cohort: Cohort::count(&subjects, reports.len()),
-        cohort_partition: cohort::summarise(
-            &reports
-                .iter()
-                .map(|r| (r.subject.as_str(), r.partition.as_slice()))
-                .collect::<Vec<_>>(),
-        ),
+        cohort_partition: cohort::summarise(&subject_partition),
+        subject_partition,
         claims_note: CLAIMS_NOTE,
         subjects,
         runs: reports,

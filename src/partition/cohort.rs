@@ -1,15 +1,29 @@
-//! The cohort view of the partition: for every modulator, the distribution over
-//! participants of its unique share and of what it shares with each group. A
-//! participant's value is the mean over their runs where it is defined.
+//! The partition across participants: each participant's mean over their runs of every
+//! modulator's own share and shared shares, and the distribution of those means over
+//! the cohort (median and range).
 
 use serde::Serialize;
 
 use super::RegressorPartition;
 
+/// `unique`, or the group shared with (a model's name, `task`, `nuisance`).
+pub const UNIQUE: &str = "unique";
+
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ParticipantShare {
+    pub subject: String,
+    pub regressor: String,
+    /// The regressor's own model.
+    pub model: Option<String>,
+    pub part: String,
+    /// Runs in which the share is defined.
+    pub runs: usize,
+    pub mean: f64,
+}
+
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct CohortShare {
     pub regressor: String,
-    /// `unique`, or the group shared with (a model's name, `task`, `nuisance`).
     pub part: String,
     pub participants: usize,
     pub median: f64,
@@ -17,48 +31,75 @@ pub struct CohortShare {
     pub max: f64,
 }
 
-/// `runs`: (participant, the run's partitions), in report order.
-pub fn summarise(runs: &[(&str, &[RegressorPartition])]) -> Vec<CohortShare> {
-    // (regressor, part) in first-seen order, then per participant the values of their runs.
-    let mut keys: Vec<(String, String)> = Vec::new();
-    let mut values: Vec<Vec<(String, Vec<f64>)>> = Vec::new();
-    let mut add = |regressor: &str, part: &str, subject: &str, value: f64| {
-        let key = (regressor.to_string(), part.to_string());
-        let index = keys.iter().position(|k| *k == key).unwrap_or_else(|| {
-            keys.push(key);
-            values.push(Vec::new());
-            keys.len() - 1
-        });
-        match values[index].iter_mut().find(|(s, _)| s == subject) {
-            Some((_, list)) => list.push(value),
-            None => values[index].push((subject.to_string(), vec![value])),
+/// `runs`: (participant, the run's partitions), in report order. The result keeps the
+/// order in which participants, regressors and parts first appear.
+pub fn participant_means(runs: &[(&str, &[RegressorPartition])]) -> Vec<ParticipantShare> {
+    let mut sums: Vec<(ParticipantShare, f64)> = Vec::new();
+    let mut add = |subject: &str, partition: &RegressorPartition, part: &str, value: f64| {
+        let regressor = partition.regressor.as_str();
+        let found = sums
+            .iter_mut()
+            .find(|(s, _)| s.subject == subject && s.regressor == regressor && s.part == part);
+        match found {
+            Some((share, total)) => {
+                share.runs += 1;
+                *total += value;
+            }
+            None => sums.push((
+                ParticipantShare {
+                    subject: subject.to_string(),
+                    regressor: regressor.to_string(),
+                    model: partition.model.clone(),
+                    part: part.to_string(),
+                    runs: 1,
+                    mean: 0.0,
+                },
+                value,
+            )),
         }
     };
     for (subject, partitions) in runs {
         for partition in partitions.iter() {
             if let Some(unique) = partition.unique {
-                add(&partition.regressor, "unique", subject, unique);
+                add(subject, partition, UNIQUE, unique);
             }
             for share in &partition.shared_with {
-                add(&partition.regressor, &share.group, subject, share.share);
+                add(subject, partition, &share.group, share.share);
             }
         }
     }
+    sums.into_iter()
+        .map(|(mut share, total)| {
+            share.mean = total / share.runs as f64;
+            share
+        })
+        .collect()
+}
+
+/// Median and range over participants, per (regressor, part).
+pub fn summarise(means: &[ParticipantShare]) -> Vec<CohortShare> {
+    let mut keys: Vec<(&str, &str)> = Vec::new();
+    for share in means {
+        let key = (share.regressor.as_str(), share.part.as_str());
+        if !keys.contains(&key) {
+            keys.push(key);
+        }
+    }
     keys.into_iter()
-        .zip(values)
-        .map(|((regressor, part), by_subject)| {
-            let mut means: Vec<f64> = by_subject
+        .map(|(regressor, part)| {
+            let mut values: Vec<f64> = means
                 .iter()
-                .map(|(_, v)| v.iter().sum::<f64>() / v.len() as f64)
+                .filter(|s| s.regressor == regressor && s.part == part)
+                .map(|s| s.mean)
                 .collect();
-            means.sort_by(f64::total_cmp);
+            values.sort_by(f64::total_cmp);
             CohortShare {
-                regressor,
-                part,
-                participants: means.len(),
-                median: median(&means),
-                min: means[0],
-                max: means[means.len() - 1],
+                regressor: regressor.to_string(),
+                part: part.to_string(),
+                participants: values.len(),
+                median: median(&values),
+                min: values[0],
+                max: values[values.len() - 1],
             }
         })
         .collect()
@@ -98,10 +139,14 @@ mod tests {
         let (r1, r2, r3, r4) = (run(0.2, 0.7), run(0.4, 0.5), run(0.9, 0.1), run(0.5, 0.3));
         let runs: Vec<(&str, &[RegressorPartition])> =
             vec![("01", &r1), ("01", &r2), ("02", &r3), ("03", &r4)];
-        let summary = summarise(&runs);
+        let means = participant_means(&runs);
+        assert_eq!(means.len(), 6);
+        assert_eq!((means[0].subject.as_str(), means[0].runs), ("01", 2));
+        assert!((means[0].mean - 0.3).abs() < 1e-15);
+        let summary = summarise(&means);
         assert_eq!(summary.len(), 2);
         let unique = &summary[0];
-        assert_eq!((unique.part.as_str(), unique.participants), ("unique", 3));
+        assert_eq!((unique.part.as_str(), unique.participants), (UNIQUE, 3));
         // Participant means: 0.3, 0.9, 0.5 → median 0.5, range 0.3–0.9.
         assert!(
             (unique.median - 0.5).abs() < 1e-15

@@ -8,7 +8,7 @@ use crate::diagnose::{
     Contrast, DEPENDENCY_TOLERANCE, Dependency, Diagnostics, ModelSet, TrialCorrelation,
 };
 use crate::flags::Flag;
-use crate::partition::cohort::CohortShare;
+use crate::partition::cohort::{CohortShare, ParticipantShare};
 use crate::partition::signal::RegionPartition;
 use crate::partition::{ModelOverlap, RegressorPartition};
 use crate::screen::{EntangledDimension, Status, SubjectSummary, vif_status};
@@ -25,6 +25,8 @@ pub struct Report {
     pub runs: Vec<RunReport>,
     pub subjects: Vec<SubjectSummary>,
     pub cohort: Cohort,
+    /// Per participant and modulator, the mean over runs of its own and shared shares.
+    pub subject_partition: Vec<ParticipantShare>,
     /// Per modulator, the distribution over participants of its unique and shared shares.
     pub cohort_partition: Vec<CohortShare>,
     /// Why shared variance limits model comparisons, and what to do instead.

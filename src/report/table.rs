@@ -37,6 +37,7 @@ pub fn render(report: &Report) -> String {
         text.push('\n');
     }
     text.push_str(&subject_table(report));
+    text.push_str(&subject_partition(report));
     text.push_str(&cohort_partition(report));
     text.push_str(&format!(
         "\n{} ok, {} caution, {} severe (of {} participants)\n\n{}\n",
@@ -68,6 +69,53 @@ const COMPACT: TableStyle = TableStyle::new()
 
 fn percent(share: f64) -> String {
     format!("{:.1}%", 100.0 * share)
+}
+
+/// Per participant and modulator (means over runs): its own share, what it shares with
+/// the other models, and what it shares with the task's timing.
+fn subject_partition(report: &Report) -> String {
+    use crate::partition::{TASK, cohort::UNIQUE};
+    let shares = &report.subject_partition;
+    if shares.is_empty() {
+        return String::new();
+    }
+    let mut table = new_table(&[
+        "subject",
+        "modulator",
+        "own",
+        "shared with other models",
+        "shared with task",
+    ]);
+    let mut seen: Vec<(&str, &str)> = Vec::new();
+    for share in shares {
+        let key = (share.subject.as_str(), share.regressor.as_str());
+        if seen.contains(&key) {
+            continue;
+        }
+        seen.push(key);
+        let of = |part: &str| {
+            shares
+                .iter()
+                .find(|s| (s.subject.as_str(), s.regressor.as_str()) == key && s.part == part)
+        };
+        let own_model = share.model.as_deref().unwrap_or_default();
+        let others: Vec<String> = shares
+            .iter()
+            .filter(|s| (s.subject.as_str(), s.regressor.as_str()) == key)
+            .filter(|s| {
+                ![UNIQUE, TASK, crate::partition::NUISANCE, own_model].contains(&s.part.as_str())
+            })
+            .map(|s| format!("{} {}", s.part, percent(s.mean)))
+            .collect();
+        table.add_row(vec![
+            share.subject.clone(),
+            share.regressor.clone(),
+            of(UNIQUE).map_or("undefined".into(), |s| percent(s.mean)),
+            others.join(", "),
+            of(TASK).map_or(String::new(), |s| percent(s.mean)),
+        ]);
+    }
+    format!("\nOwn and shared variance per participant (means over runs)\n{table}\n")
 }
 
 /// Per modulator: its unique share and what it shares, across participants.
