@@ -73,9 +73,8 @@ fn modulator_study(
     dir
 }
 
-#[test]
-fn a_modulator_equal_to_the_sum_of_two_others_is_an_exact_dependency() {
-    let models = r#"
+/// Two models: one with modulators a and b, one with their total.
+const PARTS_AND_WHOLE: &str = r#"
 [[model]]
 name = "parts"
 modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column = "b" } ]
@@ -83,7 +82,10 @@ modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column 
 name = "whole"
 modulators = [ { event = "outcome", column = "total" } ]
 "#;
-    let dir = modulator_study(&["a", "b", "total"], models, |_, rng| {
+
+#[test]
+fn a_modulator_equal_to_the_sum_of_two_others_is_an_exact_dependency() {
+    let dir = modulator_study(&["a", "b", "total"], PARTS_AND_WHOLE, |_, rng| {
         // The sum of the values as written, so that the table itself holds total = a + b.
         let a = (rng.uniform(-1.0, 1.0) * 1e4).round() / 1e4;
         let b = (rng.uniform(-1.0, 1.0) * 1e4).round() / 1e4;
@@ -413,15 +415,7 @@ fn json_holds_the_documented_fields() {
 #[test]
 fn a_regressor_near_the_sum_of_two_others_is_named_by_its_dimension() {
     // Pairwise correlations stay moderate, yet one direction of the design ties all three.
-    let models = r#"
-[[model]]
-name = "parts"
-modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column = "b" } ]
-[[model]]
-name = "whole"
-modulators = [ { event = "outcome", column = "total" } ]
-"#;
-    let dir = modulator_study(&["a", "b", "total"], models, |_, rng| {
+    let dir = modulator_study(&["a", "b", "total"], PARTS_AND_WHOLE, |_, rng| {
         let (a, b) = (rng.uniform(-1.0, 1.0), rng.uniform(-1.0, 1.0));
         vec![
             format!("{a:.4}"),

@@ -103,16 +103,21 @@ pub fn partition(
     let components = parts
         .into_iter()
         .map(|(mask, share)| Component {
-            groups: groups
-                .iter()
-                .enumerate()
-                .filter(|(g, _)| mask & (1 << g) != 0)
-                .map(|(_, group)| group.name.clone())
-                .collect(),
+            groups: names_in(groups, mask),
             share,
         })
         .collect();
     Some((full, components))
+}
+
+/// Names of the groups whose bits are set in `mask`.
+pub fn names_in(groups: &[Group], mask: u32) -> Vec<String> {
+    groups
+        .iter()
+        .enumerate()
+        .filter(|(g, _)| mask & (1 << g) != 0)
+        .map(|(_, group)| group.name.clone())
+        .collect()
 }
 
 /// Per group, the sum of the components that include it.

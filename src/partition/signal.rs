@@ -172,12 +172,7 @@ pub fn partition_region(
             .map(|((mask, share), draws)| {
                 draws.sort_by(f64::total_cmp);
                 SignalComponent {
-                    groups: groups
-                        .iter()
-                        .enumerate()
-                        .filter(|(g, _)| mask & (1 << g) != 0)
-                        .map(|(_, group)| group.name.clone())
-                        .collect(),
+                    groups: super::names_in(groups, *mask),
                     share: *share,
                     low: percentile(draws, 0.025).unwrap_or(*share),
                     high: percentile(draws, 0.975).unwrap_or(*share),
