@@ -8,10 +8,10 @@ use rayon::prelude::*;
 use crate::design::orthogonalise;
 use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
-use crate::error::{Problems, Result};
+use crate::error::{Error, Problems, Result};
 use crate::files::{InputFiles, read_text};
 use crate::partition::signal::BootstrapSettings;
-use crate::partition::{cohort, signal};
+use crate::partition::{self, cohort, signal};
 use crate::report::model::{
     Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
 };
@@ -33,6 +33,8 @@ pub struct CheckOptions {
     /// Path template (`{subject}`, `{run}`) of measured signals to partition, if any.
     pub signal: Option<String>,
     pub bootstrap: BootstrapSettings,
+    /// Only these participants, when given.
+    pub subjects: Option<Vec<String>>,
 }
 
 impl Default for CheckOptions {
@@ -42,6 +44,7 @@ impl Default for CheckOptions {
             orthogonalise: false,
             signal: None,
             bootstrap: BootstrapSettings::default(),
+            subjects: None,
         }
     }
 }
@@ -57,6 +60,10 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
     let scans = ScanTable::load(files, &study.acquisition.scans)?;
     let table = Table::read(files, &study.trials.file)?;
     let runs = collect_runs(study, &table, &scans)?;
+    let runs = match &options.subjects {
+        Some(wanted) => select_subjects(runs, wanted, study)?,
+        None => runs,
+    };
     let settings = DesignSettings::new(study, options.centre);
     let options = &options;
     let results: Vec<Result<RunReport>> = runs
@@ -82,6 +89,21 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
                 .filter(|(r, _)| r.regressor.kind.of_interest())
                 .filter_map(|(r, v)| v.map(|v| (r.regressor.name.as_str(), v)))
                 .collect(),
+            largest_condition_index: run.condition_indices.last().copied(),
+            shared: run
+                .partition
+                .iter()
+                .flat_map(|p| {
+                    p.shared_with
+                        .iter()
+                        .filter(|g| {
+                            Some(&g.group) != p.model.as_ref()
+                                && g.group != partition::TASK
+                                && g.group != partition::NUISANCE
+                        })
+                        .map(|g| (p.regressor.as_str(), g.group.as_str(), g.share))
+                })
+                .collect(),
         })
         .collect();
     let subjects = summarise_subjects(&outcomes);
@@ -104,6 +126,36 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
         subjects,
         runs: reports,
     })
+}
+
+/// The runs of the participants in `wanted`; a label not in the table is an error.
+fn select_subjects(
+    runs: Vec<RunTrials>,
+    wanted: &[String],
+    study: &Study,
+) -> Result<Vec<RunTrials>> {
+    let missing: Vec<&String> = wanted
+        .iter()
+        .filter(|w| !runs.iter().any(|r| &r.subject == *w))
+        .collect();
+    if !missing.is_empty() {
+        let mut known: Vec<&str> = runs.iter().map(|r| r.subject.as_str()).collect();
+        known.dedup();
+        return Err(Error::Usage(format!(
+            "--subjects: no participant {} in {} (participants: {})",
+            missing
+                .iter()
+                .map(|m| format!("\"{m}\""))
+                .collect::<Vec<_>>()
+                .join(", "),
+            study.trials.file.display(),
+            known.join(", ")
+        )));
+    }
+    Ok(runs
+        .into_iter()
+        .filter(|r| wanted.contains(&r.subject))
+        .collect())
 }
 
 fn check_run(

@@ -44,6 +44,9 @@ pub struct OutputArgs {
     /// Write the output to this file (atomically) instead of standard output.
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
+    /// Check only these participants (comma-separated labels, as in the trial table).
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub subjects: Option<Vec<String>>,
     /// Exit with code 3 when any participant reaches this status.
     #[arg(long, value_enum, value_name = "STATUS")]
     pub fail_on: Option<FailOn>,
@@ -78,6 +81,10 @@ pub enum Format {
     Table,
     Tsv,
     Json,
+    /// A self-contained HTML report with plots (use with --out).
+    Html,
+    /// A paragraph for a paper's methods section.
+    Methods,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

@@ -45,6 +45,7 @@ fn options(output: &OutputArgs) -> CheckOptions {
         centre: !output.no_centring,
         orthogonalise: output.orthogonalise == Orthogonalise::Serial,
         signal: output.signal.clone(),
+        subjects: output.subjects.clone(),
         bootstrap: BootstrapSettings {
             resamples: output.resamples,
             seed: output.seed,
@@ -57,6 +58,8 @@ fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
         Format::Table => report::table::render(report),
         Format::Tsv => report::tsv::render_joined(report),
         Format::Json => report::json::render(report),
+        Format::Html => report::html::render(report),
+        Format::Methods => report::methods::render(report),
     };
     match (&output.out, output.format) {
         (Some(path), Format::Tsv) => {

@@ -661,3 +661,39 @@ fn signal_option_partitions_each_region_from_the_command_line() {
             "missing-1.tsv: cannot read the file",
         ));
 }
+
+#[test]
+fn subjects_restricts_the_check_and_unknown_labels_are_errors() {
+    let output = assert_cmd::Command::cargo_bin("tangle")
+        .unwrap()
+        .args(["demo", "--format", "json", "--subjects", "03,17"])
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let report: Value = serde_json::from_slice(&output).unwrap();
+    let subjects: Vec<&str> = report["subjects"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["subject"].as_str().unwrap())
+        .collect();
+    assert_eq!(subjects, ["03", "17"]);
+    assert_eq!(report["runs"].as_array().unwrap().len(), 6);
+    assert!(
+        report["subjects"][0]["worst_condition_index"]
+            .as_f64()
+            .unwrap()
+            > 100.0
+    );
+    assert_eq!(report["subjects"][0]["largest_shared"]["model"], "hybrid");
+    assert_cmd::Command::cargo_bin("tangle")
+        .unwrap()
+        .args(["demo", "--subjects", "03,99"])
+        .assert()
+        .code(1)
+        .stderr(predicate::str::contains(
+            "--subjects: no participant \"99\"",
+        ));
+}

@@ -1,8 +1,11 @@
 //! Renderers. Each reads the same [`model::Report`].
 
 mod format;
+pub mod html;
 pub mod json;
+pub mod methods;
 pub mod model;
+pub mod plots;
 pub mod table;
 pub mod tsv;
 

@@ -359,21 +359,36 @@ fn subject_table(report: &Report) -> String {
         "worst VIF",
         "regressor",
         "run",
+        "worst CI",
+        "most shared with another model",
         "status",
         "runs flagged",
     ]);
     for subject in &report.subjects {
+        let shared = subject.largest_shared.as_ref().map_or(String::new(), |s| {
+            format!(
+                "{} {} with {} (run {})",
+                s.regressor,
+                percent(s.share),
+                s.model,
+                s.run
+            )
+        });
         table.add_row(vec![
             subject.subject.clone(),
             ratio(subject.worst_vif),
             subject.worst_regressor.clone().unwrap_or_default(),
             subject.worst_run.clone().unwrap_or_default(),
+            ratio(subject.worst_condition_index),
+            shared,
             subject.status.label().to_string(),
             subject.runs_flagged.join(", "),
         ]);
     }
-    if let Some(column) = table.column_mut(1) {
-        column.set_cell_alignment(CellAlignment::Right);
+    for column in [1, 4] {
+        if let Some(column) = table.column_mut(column) {
+            column.set_cell_alignment(CellAlignment::Right);
+        }
     }
-    format!("Participants\n{table}\n")
+    format!("Participants (CI: largest condition index of the filtered design)\n{table}\n")
 }

@@ -372,6 +372,10 @@ fn subjects(report: &Report) -> TsvTable {
                 exact(s.worst_vif),
                 text(&s.worst_regressor),
                 text(&s.worst_run),
+                exact(s.worst_condition_index),
+                text(&s.largest_shared.as_ref().map(|l| l.regressor.clone())),
+                text(&s.largest_shared.as_ref().map(|l| l.model.clone())),
+                exact(s.largest_shared.as_ref().map(|l| l.share)),
                 s.status.label().to_string(),
                 s.runs_flagged.join(","),
             ]

@@ -258,9 +258,22 @@ pub struct SubjectSummary {
     pub worst_regressor: Option<String>,
     /// Run holding the worst VIF.
     pub worst_run: Option<String>,
+    /// Largest condition index of the filtered design over the participant's runs.
+    pub worst_condition_index: Option<f64>,
+    /// Largest share of a modulator's variance shared with another model, over runs.
+    pub largest_shared: Option<SharedShare>,
     pub status: Status,
     /// Runs whose status equals the participant's (when not ok).
     pub runs_flagged: Vec<String>,
+}
+
+/// A modulator's variance shared with another model.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SharedShare {
+    pub regressor: String,
+    pub model: String,
+    pub share: f64,
+    pub run: String,
 }
 
 /// What the subject summary needs to know about one run.
@@ -270,6 +283,9 @@ pub struct RunOutcome<'a> {
     pub status: Status,
     /// (regressor name, VIF) for regressors of interest with a defined VIF.
     pub vifs: Vec<(&'a str, f64)>,
+    pub largest_condition_index: Option<f64>,
+    /// (modulator, other model, share) for every share of a modulator with another model.
+    pub shared: Vec<(&'a str, &'a str, f64)>,
 }
 
 /// One summary per participant, in order of first appearance.
@@ -285,6 +301,8 @@ pub fn summarise_subjects(runs: &[RunOutcome<'_>]) -> Vec<SubjectSummary> {
                     worst_vif: None,
                     worst_regressor: None,
                     worst_run: None,
+                    worst_condition_index: None,
+                    largest_shared: None,
                     status: Status::Ok,
                     runs_flagged: Vec::new(),
                 });
@@ -297,6 +315,28 @@ pub fn summarise_subjects(runs: &[RunOutcome<'_>]) -> Vec<SubjectSummary> {
                 summary.worst_vif = Some(vif);
                 summary.worst_regressor = Some(name.to_string());
                 summary.worst_run = Some(run.run.to_string());
+            }
+        }
+        if let Some(index) = run.largest_condition_index {
+            if summary
+                .worst_condition_index
+                .is_none_or(|worst| index > worst)
+            {
+                summary.worst_condition_index = Some(index);
+            }
+        }
+        for &(regressor, model, share) in &run.shared {
+            if summary
+                .largest_shared
+                .as_ref()
+                .is_none_or(|s| share > s.share)
+            {
+                summary.largest_shared = Some(SharedShare {
+                    regressor: regressor.to_string(),
+                    model: model.to_string(),
+                    share,
+                    run: run.run.to_string(),
+                });
             }
         }
         if run.status > summary.status {
@@ -323,33 +363,33 @@ mod tests {
         assert_eq!(vif_status(None, &t), Status::Ok);
     }
 
+    fn outcome<'a>(
+        subject: &'a str,
+        run: &'a str,
+        status: Status,
+        vifs: Vec<(&'a str, f64)>,
+    ) -> RunOutcome<'a> {
+        let largest = vifs
+            .iter()
+            .map(|v| v.1)
+            .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
+        RunOutcome {
+            subject,
+            run,
+            status,
+            vifs,
+            largest_condition_index: largest,
+            shared: vec![("a", "m", 0.5)],
+        }
+    }
+
     #[test]
     fn subjects_take_their_worst_run() {
         let runs = [
-            RunOutcome {
-                subject: "01",
-                run: "1",
-                status: Status::Caution,
-                vifs: vec![("a", 6.0)],
-            },
-            RunOutcome {
-                subject: "01",
-                run: "2",
-                status: Status::Severe,
-                vifs: vec![("a", 12.0), ("b", 2.0)],
-            },
-            RunOutcome {
-                subject: "01",
-                run: "3",
-                status: Status::Severe,
-                vifs: vec![("b", 11.0)],
-            },
-            RunOutcome {
-                subject: "02",
-                run: "1",
-                status: Status::Ok,
-                vifs: vec![],
-            },
+            outcome("01", "1", Status::Caution, vec![("a", 6.0)]),
+            outcome("01", "2", Status::Severe, vec![("a", 12.0), ("b", 2.0)]),
+            outcome("01", "3", Status::Severe, vec![("b", 11.0)]),
+            outcome("02", "1", Status::Ok, vec![]),
         ];
         let summary = summarise_subjects(&runs);
         assert_eq!(summary.len(), 2);
@@ -358,6 +398,11 @@ mod tests {
         assert_eq!(summary[0].worst_run.as_deref(), Some("2"));
         assert_eq!(summary[0].status, Status::Severe);
         assert_eq!(summary[0].runs_flagged, ["2", "3"]);
+        assert_eq!(summary[0].worst_condition_index, Some(12.0));
+        assert_eq!(
+            summary[0].largest_shared.as_ref().map(|s| s.run.as_str()),
+            Some("1")
+        );
         assert_eq!(summary[1].worst_vif, None);
         assert_eq!(summary[1].status, Status::Ok);
     }
