@@ -88,6 +88,9 @@ pub fn partition(
             .flat_map(|(_, group)| group.members.iter().copied())
             .collect()
     };
+    if groups.len() > commonality::MAX_GROUPS {
+        return None;
+    }
     let all: u32 = (1u32 << groups.len()) - 1;
     let mut r2_cache = vec![None; all as usize + 1];
     for mask in 1..=all {

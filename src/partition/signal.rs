@@ -138,6 +138,8 @@ pub fn partition_region(
     settings: BootstrapSettings,
 ) -> RegionPartition {
     let scans = y.len();
+    // The study parser caps the number of models; keep the subset count bounded regardless.
+    let groups = &groups[..groups.len().min(commonality::MAX_GROUPS)];
     let fits = Fits::new(columns, base, groups);
     let observed = DVector::from_column_slice(y);
     let r2 = fits.r_squared(&observed);

@@ -15,6 +15,9 @@ use crate::error::{Error, Location, Problem, Problems, Result};
 
 type Table<'i> = DeTable<'i>;
 
+/// Models plus the task and nuisance groups must stay within the partition's group limit.
+const MAX_MODELS: usize = crate::partition::commonality::MAX_GROUPS - 2;
+
 /// Parses and validates a study file. `path` is used for messages and to resolve the
 /// relative paths inside it.
 pub fn parse_study(path: &Path, text: &str) -> Result<Study> {
@@ -320,6 +323,16 @@ impl Reader<'_> {
                 (Some(name), Some(modulators)) => models.push(ModelSpec { name, modulators }),
                 _ => complete = false,
             }
+        }
+        if models.len() > MAX_MODELS {
+            self.problems.push(
+                Problem::new(
+                    Location::file(self.path),
+                    format!("the study declares {} models; at most {MAX_MODELS} are supported", models.len()),
+                )
+                .with_hint("the variance partition considers every subset of models and task/nuisance groups"),
+            );
+            return None;
         }
         complete.then_some(models)
     }

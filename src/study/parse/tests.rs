@@ -140,3 +140,23 @@ fn negative_duration_and_both_scan_keys_are_errors() {
         "{found:?}"
     );
 }
+
+#[test]
+fn too_many_models_and_reserved_names_are_rejected() {
+    let mut text = MINIMAL.replace("name = \"delta\"", "name = \"m0\"");
+    for i in 1..15 {
+        text.push_str(&format!("[[model]]\nname = \"m{i}\"\nmodulators = [ {{ event = \"outcome\", column = \"pe\" }} ]\n"));
+    }
+    let found = messages(&text);
+    assert!(
+        found
+            .iter()
+            .any(|m| m.contains("declares 15 models; at most 14")),
+        "{found:?}"
+    );
+    let found = messages(&MINIMAL.replace("name = \"delta\"", "name = \"task\""));
+    assert!(
+        found[0].contains("\"task\" cannot name a model"),
+        "{found:?}"
+    );
+}
