@@ -1,0 +1,43 @@
+//! The second paragraph: which diagnostics were computed, and the thresholds.
+
+use super::format::{list, tolerance};
+use super::layout::Layout;
+use crate::report::Report;
+
+pub(super) fn diagnostics_paragraph(report: &Report, layout: &Layout) -> String {
+    let settings = &report.settings;
+    let thresholds = &settings.thresholds;
+    let mut sentences: Vec<String> = Vec::new();
+
+    let mut tools = vec![
+        "variance inflation factors (VIF = 1/(1 − R²))".to_string(),
+        "condition indices and variance-decomposition proportions (Belsley, Kuh & Welsch, 1980)"
+            .to_string(),
+    ];
+    if layout.has_modulators() {
+        tools.push(
+            "the generalized VIF of each model's set of modulators (Fox & Monette, 1992)"
+                .to_string(),
+        );
+        tools.push("commonality analysis of each modulator's unique and shared variance (Mood, 1969; Seibold & McPhee, 1979; Nimon et al., 2008)".to_string());
+    }
+    sentences.push(format!(
+        "Redundancy was quantified per run with {}.",
+        list(&tools)
+    ));
+    sentences.push(format!(
+        "A column whose residual on the preceding columns had less than {} of its unit length was treated as exactly dependent (severe).",
+        tolerance(settings.dependency_tolerance)
+    ));
+    sentences.push(format!(
+        "Following common-practice rules of thumb, an event or modulator VIF ≥ {} marked caution and ≥ {} severe; a condition index ≥ {} with two or more proportions ≥ 0.5 marked a near-dependency (after Belsley et al., 1980; severe from {}); a participant took the worst status of their runs.",
+        thresholds.vif_caution,
+        thresholds.vif_severe,
+        thresholds.condition_index,
+        thresholds.condition_index_severe
+    ));
+    if settings.orthogonalisation == "serial" {
+        sentences.push("Diagnostics were also computed with the modulators serially orthogonalised, which assigns shared variance rather than removing it (Mumford, Poline & Poldrack, 2015); statuses refer to the design as written.".to_string());
+    }
+    sentences.join(" ")
+}
