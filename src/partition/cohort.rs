@@ -97,7 +97,7 @@ pub fn summarise(means: &[ParticipantShare]) -> Vec<CohortShare> {
                 regressor: regressor.to_string(),
                 part: part.to_string(),
                 participants: values.len(),
-                median: median(&values),
+                median: median(&values).unwrap_or(values[0]),
                 min: values[0],
                 max: values[values.len() - 1],
             }
@@ -105,14 +105,10 @@ pub fn summarise(means: &[ParticipantShare]) -> Vec<CohortShare> {
         .collect()
 }
 
-/// Median of sorted, non-empty values.
-fn median(sorted: &[f64]) -> f64 {
-    let n = sorted.len();
-    if n % 2 == 1 {
-        sorted[n / 2]
-    } else {
-        (sorted[n / 2 - 1] + sorted[n / 2]) / 2.0
-    }
+/// Median of the values (statrs); `None` when there are none.
+pub fn median(values: &[f64]) -> Option<f64> {
+    use statrs::statistics::{Data, Median};
+    (!values.is_empty()).then(|| Data::new(values.to_vec()).median())
 }
 
 #[cfg(test)]

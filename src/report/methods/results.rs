@@ -96,7 +96,11 @@ fn vif_summary(runs: &[RunReport], named: &Named) -> String {
             format!("undefined in {}", count(undefined, "run", "runs"))
         }
     };
-    match (median(&values), values.first(), values.last()) {
+    match (
+        crate::partition::cohort::median(&values),
+        values.first(),
+        values.last(),
+    ) {
         (Some(mid), Some(&low), Some(&high)) => {
             let note = if undefined > 0 {
                 format!("; {}", undefined_note(false))
@@ -180,13 +184,4 @@ fn participants_with(report: &Report, test: impl Fn(&RunReport) -> bool) -> usiz
         }
     }
     subjects.len()
-}
-
-fn median(sorted: &[f64]) -> Option<f64> {
-    let n = sorted.len();
-    match n {
-        0 => None,
-        _ if n % 2 == 1 => Some(sorted[n / 2]),
-        _ => Some((sorted[n / 2 - 1] + sorted[n / 2]) / 2.0),
-    }
 }
