@@ -40,6 +40,23 @@ fn run(cli: &Cli) -> ExitCode {
     }
 }
 
+/// Standard output closed early (e.g. piped into `head`) is not an error: the reader has
+/// what it wanted.
+fn print_to_stdout(text: &str) -> tangle::Result<()> {
+    use std::io::Write;
+    let mut stdout = std::io::stdout().lock();
+    match stdout
+        .write_all(text.as_bytes())
+        .and_then(|()| stdout.flush())
+    {
+        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(Error::Output {
+            path: "standard output".into(),
+            source: err,
+        }),
+        _ => Ok(()),
+    }
+}
+
 fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
         centre: !output.no_centring,
@@ -66,7 +83,7 @@ fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
             tangle::output::write_tables(path, &report::tsv::render(report))?
         }
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
-        (None, _) => print!("{text}"),
+        (None, _) => print_to_stdout(&text)?,
     }
     let limit = output.fail_on.map(|level| match level {
         FailOn::Caution => Status::Caution,
