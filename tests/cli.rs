@@ -697,3 +697,30 @@ fn subjects_restricts_the_check_and_unknown_labels_are_errors() {
             "--subjects: no participant \"99\"",
         ));
 }
+
+#[test]
+fn trials_after_the_run_are_not_counted_as_missing_values() {
+    let dir = StudyDir::new();
+    let mut trials = String::from("subject,run,cue_onset,outcome_onset,v\n");
+    let mut rng = Lcg(5);
+    for i in 0..30 {
+        let t = 2.0 + 9.0 * i as f64;
+        trials.push_str(&format!(
+            "01,1,{t},{},{:.3}\n",
+            t + 3.0 + (i % 4) as f64,
+            rng.uniform(-1.0, 1.0)
+        ));
+    }
+    let models =
+        "[[model]]\nname = \"m\"\nmodulators = [ { event = \"outcome\", column = \"v\" } ]\n";
+    // 120 scans of 2 s: the trials from 240 s on are after the run.
+    dir.file("study.toml", &study_toml(2.0, 120, models))
+        .file("trials.csv", &trials);
+    let report = dir.json(&[]);
+    let codes = codes(&report["runs"][0]);
+    assert!(
+        codes.contains(&"onset_after_run_end".to_string()),
+        "{codes:?}"
+    );
+    assert!(!codes.contains(&"missing_values".to_string()), "{codes:?}");
+}

@@ -136,7 +136,14 @@ pub fn build_design(
                 .zip(&kept[index])
                 .map(|(v, &k)| if k { *v } else { None })
                 .collect();
-            modulator_flags(&name, event, &usable_values, &heights, &mut flags);
+            modulator_flags(
+                &name,
+                event,
+                &usable_values,
+                &kept[index],
+                &heights,
+                &mut flags,
+            );
             let included = pending[index].included && heights.iter().any(|h| *h != 0.0);
             trial_values.push(TrialValues {
                 regressor: pending.len(),
@@ -328,17 +335,20 @@ fn modulator_flags(
     name: &str,
     event: &EventTrials,
     values: &[Option<f64>],
+    kept: &[bool],
     heights: &[f64],
     flags: &mut Vec<Flag>,
 ) {
+    // Trials left out (after the run's end) are flagged as such, not as missing values.
+    let trials = kept.iter().filter(|&&k| k).count();
     let present = values.iter().filter(|v| v.is_some()).count();
-    let missing = values.len() - present;
+    let missing = trials - present;
     if missing > 0 && present > 0 {
         flags.push(Flag::new(
             Severity::Note,
             "missing_values",
             vec![name.to_string()],
-            format!("{missing} of {} trials of \"{}\" have no value for {name}; they contribute 0 to the modulator", values.len(), event.name),
+            format!("{missing} of {trials} trials of \"{}\" have no value for {name}; they contribute 0 to the modulator", event.name),
         ));
     }
     if present > 0 && heights.iter().all(|h| *h == 0.0) {
