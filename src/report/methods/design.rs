@@ -15,9 +15,13 @@ pub(super) fn design_paragraph(report: &Report, layout: &Layout) -> String {
         Some((low, high)) => format!("{low}–{high} volumes, "),
         None => String::new(),
     };
+    let runs = if report.cohort.runs == 1 {
+        "the single run".to_string()
+    } else {
+        format!("each of the {}", count(report.cohort.runs, "run", "runs"))
+    };
     sentences.push(format!(
-        "Design matrices were built for each of the {} ({volumes}TR = {} s) of {}.",
-        count(report.cohort.runs, "run", "runs"),
+        "Design matrices were built for {runs} ({volumes}TR = {} s) of {}.",
         settings.tr,
         count(report.cohort.subjects, "participant", "participants"),
     ));
