@@ -16,6 +16,20 @@ fn vif(run: &Value, name: &str) -> Option<f64> {
     run["vif"][index].as_f64()
 }
 
+/// The demo's JSON report, with extra options.
+fn demo_json(args: &[&str]) -> Value {
+    let output = assert_cmd::Command::cargo_bin("tangle")
+        .unwrap()
+        .args(["demo", "--format", "json"])
+        .args(args)
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    serde_json::from_slice(&output).unwrap()
+}
+
 fn codes(run: &Value) -> Vec<String> {
     run["flags"]
         .as_array()
@@ -491,15 +505,7 @@ fn exact_dependencies_leave_conditioning_defined_for_the_rest() {
 
 #[test]
 fn the_demo_names_the_entangled_regressors_of_its_nearly_identical_volunteers() {
-    let output = assert_cmd::Command::cargo_bin("tangle")
-        .unwrap()
-        .args(["demo", "--format", "json"])
-        .assert()
-        .success()
-        .get_output()
-        .stdout
-        .clone();
-    let report: Value = serde_json::from_slice(&output).unwrap();
+    let report = demo_json(&[]);
     let runs: Vec<&Value> = report["runs"]
         .as_array()
         .unwrap()
@@ -560,15 +566,7 @@ fn serial_orthogonalisation_is_shown_beside_the_design_as_written() {
 
 #[test]
 fn demo_claim_warnings_appear_exactly_where_the_shared_share_dominates() {
-    let output = assert_cmd::Command::cargo_bin("tangle")
-        .unwrap()
-        .args(["demo", "--format", "json"])
-        .assert()
-        .success()
-        .get_output()
-        .stdout
-        .clone();
-    let report: Value = serde_json::from_slice(&output).unwrap();
+    let report = demo_json(&[]);
     let mut warned = 0;
     for run in report["runs"].as_array().unwrap() {
         for partition in run["partition"].as_array().unwrap() {
@@ -664,15 +662,7 @@ fn signal_option_partitions_each_region_from_the_command_line() {
 
 #[test]
 fn subjects_restricts_the_check_and_unknown_labels_are_errors() {
-    let output = assert_cmd::Command::cargo_bin("tangle")
-        .unwrap()
-        .args(["demo", "--format", "json", "--subjects", "03,17"])
-        .assert()
-        .success()
-        .get_output()
-        .stdout
-        .clone();
-    let report: Value = serde_json::from_slice(&output).unwrap();
+    let report = demo_json(&["--subjects", "03,17"]);
     let subjects: Vec<&str> = report["subjects"]
         .as_array()
         .unwrap()
