@@ -5,7 +5,7 @@ use std::path::PathBuf;
 use super::filter::DriftBasis;
 use super::hrf::{Kernel, sampled};
 use super::regressors::{Grid, event_regressor};
-use super::{Design, Regressor, RegressorKind, TrialValues};
+use super::{Design, EventSummary, Regressor, RegressorKind, TrialValues};
 use crate::error::{Error, Location, Problem};
 use crate::flags::{Flag, Severity};
 use crate::study::{ModelSpec, Study};
@@ -234,7 +234,28 @@ pub fn build_design(
         .iter()
         .map(|c| drift.residualise(c))
         .collect();
+    let events = run
+        .events
+        .iter()
+        .zip(&kept)
+        .map(|(event, kept)| {
+            let durations: Vec<f64> = event
+                .durations
+                .iter()
+                .zip(kept)
+                .filter(|(_, k)| **k)
+                .map(|(d, _)| *d)
+                .collect();
+            EventSummary {
+                event: event.name.clone(),
+                trials: durations.len(),
+                min_duration: durations.iter().copied().reduce(f64::min),
+                max_duration: durations.iter().copied().reduce(f64::max),
+            }
+        })
+        .collect();
     Ok(Design {
+        events,
         subject: run.subject.clone(),
         run: run.run.clone(),
         scans: run.scans,

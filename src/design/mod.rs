@@ -64,7 +64,19 @@ pub struct Design {
     pub drift_columns: usize,
     /// Trial-level (centred) modulator heights, for trial-level correlations.
     pub trial_values: Vec<TrialValues>,
+    /// Each event's trials inside the run and their durations.
+    pub events: Vec<EventSummary>,
     pub flags: Vec<Flag>,
+}
+
+/// An event's trials inside the run (those starting after its end are left out).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EventSummary {
+    pub event: String,
+    pub trials: usize,
+    /// Shortest and longest duration in seconds (0 = sticks); `None` without trials.
+    pub min_duration: Option<f64>,
+    pub max_duration: Option<f64>,
 }
 
 /// The values of one modulator on the trials of its event (`None` = missing).

@@ -3,7 +3,7 @@
 
 use serde::Serialize;
 
-use crate::design::{Design, Regressor, RegressorKind};
+use crate::design::{Design, EventSummary, Regressor, RegressorKind};
 use crate::diagnose::{
     Contrast, DEPENDENCY_TOLERANCE, Dependency, Diagnostics, ModelSet, TrialCorrelation,
 };
@@ -113,6 +113,8 @@ pub struct RunReport {
     pub scans: usize,
     /// Constant and cosine columns projected out.
     pub drift_columns: usize,
+    /// Trials and durations of each event in the run.
+    pub events: Vec<EventSummary>,
     pub regressors: Vec<RegressorReport>,
     /// Aligned with `regressors`; `null` where undefined (a flag says why).
     pub vif: Vec<Option<f64>>,
@@ -222,6 +224,7 @@ impl RunReport {
             run: design.run,
             scans: design.scans,
             drift_columns: design.drift_columns,
+            events: design.events,
             regressors,
             se_inflation: diagnostics.vif.iter().map(|v| v.map(f64::sqrt)).collect(),
             vif: diagnostics.vif,

@@ -30,11 +30,12 @@ pub(super) fn design_paragraph(report: &Report, layout: &Layout) -> String {
     let events = if layout.events.is_empty() {
         format!("The design had no event regressors; regressors were built {grid}")
     } else {
-        let names: Vec<String> = layout.events.iter().map(|e| e.label.clone()).collect();
-        format!(
-            "Events ({}) were modelled as sticks, or boxcars of their stated durations, {grid}",
-            list(&names)
-        )
+        let shapes: Vec<String> = layout
+            .events
+            .iter()
+            .map(|e| event_shape(report, &e.name, &e.label))
+            .collect();
+        format!("Events were modelled {grid}: {}", list(&shapes))
     };
     if layout.has_modulators() {
         let per_model: Vec<String> = layout
@@ -134,6 +135,43 @@ fn sample_point(reference: f64) -> String {
     } else {
         format!("{reference}·TR after the start of each volume")
     }
+}
+
+/// "outcome as boxcars of 0.5–1.4 s (58–60 trials per run)", from every run's events.
+fn event_shape(report: &Report, event: &str, label: &str) -> String {
+    let summaries: Vec<_> = report
+        .runs
+        .iter()
+        .flat_map(|r| r.events.iter())
+        .filter(|e| e.event == event)
+        .collect();
+    let trials: Vec<usize> = summaries.iter().map(|e| e.trials).collect();
+    let shortest = summaries
+        .iter()
+        .filter_map(|e| e.min_duration)
+        .reduce(f64::min);
+    let longest = summaries
+        .iter()
+        .filter_map(|e| e.max_duration)
+        .reduce(f64::max);
+    let shape = match (shortest, longest) {
+        (_, Some(high)) if high == 0.0 => "as sticks".to_string(),
+        (Some(low), Some(high)) if low == high => format!("as boxcars of {} s", seconds(high)),
+        (Some(low), Some(high)) => format!("as boxcars of {}–{} s", seconds(low), seconds(high)),
+        _ => "without trials".to_string(),
+    };
+    let per_run = match span(&trials) {
+        Some((low, high)) if low == high => format!("{} per run", count(low, "trial", "trials")),
+        Some((low, high)) => format!("{low}–{high} trials per run"),
+        None => String::new(),
+    };
+    format!("{label} {shape} ({per_run})")
+}
+
+/// Seconds with at most two decimals, no trailing zeros.
+fn seconds(value: f64) -> String {
+    let text = format!("{value:.2}");
+    text.trim_end_matches('0').trim_end_matches('.').to_string()
 }
 
 fn span(values: &[usize]) -> Option<(usize, usize)> {
