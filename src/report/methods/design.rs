@@ -155,7 +155,7 @@ fn event_shape(report: &Report, event: &str, label: &str) -> String {
         .filter_map(|e| e.max_duration)
         .reduce(f64::max);
     let shape = match (shortest, longest) {
-        (_, Some(high)) if high == 0.0 => "as sticks".to_string(),
+        (_, Some(0.0)) => "as sticks".to_string(),
         (Some(low), Some(high)) if low == high => format!("as boxcars of {} s", seconds(high)),
         (Some(low), Some(high)) => format!("as boxcars of {}–{} s", seconds(low), seconds(high)),
         _ => "without trials".to_string(),
