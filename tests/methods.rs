@@ -9,7 +9,7 @@ use serde_json::Value;
 use tangle::check::CheckOptions;
 use tangle::report::methods;
 
-use common::{StudyDir, study_toml, trials_csv};
+use common::{StudyDir, regressor_names, study_toml, trials_csv};
 
 fn demo_output(format: &str) -> Vec<u8> {
     let output = Command::cargo_bin("tangle")
@@ -64,12 +64,7 @@ fn vifs_over_runs(json: &Value, regressor: &str) -> (Vec<f64>, usize) {
     let mut values = Vec::new();
     let mut undefined = 0;
     for run in json["runs"].as_array().unwrap() {
-        let names: Vec<&str> = run["regressors"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|r| r["name"].as_str().unwrap())
-            .collect();
+        let names = regressor_names(run);
         let Some(index) = names.iter().position(|n| *n == regressor) else {
             continue;
         };

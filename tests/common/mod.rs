@@ -6,6 +6,16 @@ use std::path::{Path, PathBuf};
 use assert_cmd::Command;
 use serde_json::Value;
 
+/// The regressor names of a run in a JSON report.
+pub fn regressor_names(run: &Value) -> Vec<&str> {
+    run["regressors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["name"].as_str().unwrap())
+        .collect()
+}
+
 pub struct StudyDir {
     pub dir: tempfile::TempDir,
 }
