@@ -2,4 +2,5 @@
 //! real analysis would fit them, then the full design check on every simulated run.
 
 pub mod choice;
+pub mod fit;
 pub mod learners;

@@ -1,0 +1,1 @@
+//! Maximum-likelihood fitting of a learner's parameters to observed choices.
