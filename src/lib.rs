@@ -53,6 +53,7 @@ pub mod partition;
 pub mod report;
 pub mod screen;
 pub mod study;
+pub mod toml_read;
 pub mod trials;
 
 pub use error::{Error, Result};

@@ -6,14 +6,15 @@ use std::collections::BTreeSet;
 use std::ops::Range;
 use std::path::Path;
 
-use toml::Spanned;
-use toml::de::{DeTable, DeValue};
+use std::ops::{Deref, DerefMut};
+
+use toml::de::DeValue;
 
 use super::schema;
 use super::*;
-use crate::error::{Error, Location, Problem, Problems, Result};
+use crate::error::{Location, Problem, Result};
 
-type Table<'i> = DeTable<'i>;
+use crate::toml_read::{Table, TomlReader, get, has_key, parse_toml};
 
 /// Models plus the task and nuisance groups must stay within the partition's group limit.
 const MAX_MODELS: usize = crate::partition::commonality::MAX_GROUPS - 2;
@@ -21,54 +22,31 @@ const MAX_MODELS: usize = crate::partition::commonality::MAX_GROUPS - 2;
 /// Parses and validates a study file. `path` is used for messages and to resolve the
 /// relative paths inside it.
 pub fn parse_study(path: &Path, text: &str) -> Result<Study> {
-    let root = DeTable::parse(text).map_err(|err| {
-        let location = match err.span() {
-            Some(span) => Location::at_offset(path, text, span.start),
-            None => Location::file(path),
-        };
-        Error::input(
-            Problem::new(
-                location,
-                format!("not valid TOML: {}", err.message().trim()),
-            )
-            .with_hint("see the study file reference in the README"),
-        )
-    })?;
-    let mut reader = Reader {
-        path,
-        text,
-        problems: Problems::default(),
-    };
+    let root = parse_toml(path, text, "study file")?;
+    let mut reader = Reader(TomlReader::new(path, text));
     let study = reader.study(root.get_ref());
-    let Reader { problems, .. } = reader;
-    match study {
-        Some(study) => problems.finish(study),
-        None => Err(problems
-            .finish(())
-            .err()
-            .unwrap_or_else(|| Error::Internal("study rejected without a reason".into()))),
+    reader.0.finish(study, "study")
+}
+
+/// The study-file reader: typed TOML access plus the study's own key lists.
+struct Reader<'a>(TomlReader<'a>);
+
+impl<'a> Deref for Reader<'a> {
+    type Target = TomlReader<'a>;
+    fn deref(&self) -> &TomlReader<'a> {
+        &self.0
     }
 }
 
-struct Reader<'a> {
-    path: &'a Path,
-    text: &'a str,
-    problems: Problems,
+impl DerefMut for Reader<'_> {
+    fn deref_mut(&mut self) -> &mut Self::Target {
+        &mut self.0
+    }
 }
 
 impl Reader<'_> {
-    fn at(&self, span: Range<usize>) -> Location {
-        Location::at_offset(self.path, self.text, span.start)
-    }
-
-    fn problem(&mut self, span: Range<usize>, message: impl Into<String>) {
-        let problem = Problem::new(self.at(span), message);
-        self.problems.push(problem);
-    }
-
-    fn problem_with_hint(&mut self, span: Range<usize>, message: String, hint: String) {
-        let problem = Problem::new(self.at(span), message).with_hint(hint);
-        self.problems.push(problem);
+    fn section<'t, 'i>(&mut self, root: &'t Table<'i>, name: &str) -> Option<&'t Table<'i>> {
+        self.0.section(root, name, schema::keys_of(name))
     }
 
     fn study(&mut self, root: &Table<'_>) -> Option<Study> {
@@ -118,9 +96,9 @@ impl Reader<'_> {
 
     fn acquisition(&mut self, root: &Table<'_>, dir: &Path) -> Option<Acquisition> {
         let Some(table) = self.section(root, "acquisition") else {
-            self.problems.push(
+            self.0.problems.push(
                 Problem::new(
-                    Location::file(self.path),
+                    Location::file(self.0.path),
                     "the study file has no [acquisition] section",
                 )
                 .with_hint("add [acquisition] with tr = <seconds> and scans = <volumes per run>"),
@@ -197,9 +175,9 @@ impl Reader<'_> {
 
     fn trials(&mut self, root: &Table<'_>, dir: &Path) -> Option<TrialSource> {
         let Some(table) = self.section(root, "trials") else {
-            self.problems.push(
+            self.0.problems.push(
                 Problem::new(
-                    Location::file(self.path),
+                    Location::file(self.0.path),
                     "the study file has no [trials] section",
                 )
                 .with_hint("add [trials] with file = \"trials.csv\""),
@@ -226,9 +204,9 @@ impl Reader<'_> {
 
     fn events(&mut self, root: &Table<'_>) -> Option<Vec<EventSpec>> {
         let Some(entries) = self.array_of_tables(root, "event") else {
-            self.problems.push(
+            self.0.problems.push(
                 Problem::new(
-                    Location::file(self.path),
+                    Location::file(self.0.path),
                     "the study file declares no [[event]]",
                 )
                 .with_hint("add [[event]] with name = \"outcome\" and onset = \"<onset column>\""),
@@ -325,9 +303,9 @@ impl Reader<'_> {
             }
         }
         if models.len() > MAX_MODELS {
-            self.problems.push(
+            self.0.problems.push(
                 Problem::new(
-                    Location::file(self.path),
+                    Location::file(self.0.path),
                     format!("the study declares {} models; at most {MAX_MODELS} are supported", models.len()),
                 )
                 .with_hint("the variance partition considers every subset of models and task/nuisance groups"),
@@ -482,246 +460,6 @@ impl Reader<'_> {
             shared_over_unique: shared_over_unique?,
         })
     }
-
-    // ---- typed access -------------------------------------------------------
-
-    /// Reports every key of `table` that is not in `valid`, with the closest valid key.
-    fn check_keys(&mut self, table: &Table<'_>, section: &str, valid: &[&str]) {
-        for (key, _) in table.iter() {
-            let name: &str = key.get_ref();
-            if valid.contains(&name) {
-                continue;
-            }
-            let place = if section.is_empty() {
-                "at the top level".to_string()
-            } else {
-                format!("in [{section}]")
-            };
-            let hint = match schema::closest(name, valid) {
-                Some(near) => format!("did you mean `{near}`?"),
-                None => format!("valid keys here: {}", valid.join(", ")),
-            };
-            self.problem_with_hint(key.span(), format!("unknown key `{name}` {place}"), hint);
-        }
-    }
-
-    fn section<'t, 'i>(&mut self, root: &'t Table<'i>, name: &str) -> Option<&'t Table<'i>> {
-        let value = get(root, name)?;
-        match value.get_ref() {
-            DeValue::Table(table) => {
-                self.check_keys(table, name, schema::keys_of(name));
-                Some(table)
-            }
-            _ => {
-                self.problem(
-                    value.span(),
-                    format!(
-                        "[{name}] must be a table (a section), not a {}",
-                        value.get_ref().type_str()
-                    ),
-                );
-                None
-            }
-        }
-    }
-
-    fn array_of_tables<'t, 'i>(
-        &mut self,
-        root: &'t Table<'i>,
-        name: &str,
-    ) -> Option<Vec<(&'t Table<'i>, Range<usize>)>> {
-        let value = get(root, name)?;
-        let DeValue::Array(items) = value.get_ref() else {
-            self.problem_with_hint(
-                value.span(),
-                format!("`{name}` must be a list of tables"),
-                format!("write each one under its own [[{name}]] header"),
-            );
-            return None;
-        };
-        let mut tables = Vec::new();
-        for item in items {
-            match item.get_ref() {
-                DeValue::Table(table) => tables.push((table, item.span())),
-                other => self.problem(
-                    item.span(),
-                    format!(
-                        "each [[{name}]] must be a table, not a {}",
-                        other.type_str()
-                    ),
-                ),
-            }
-        }
-        Some(tables)
-    }
-
-    fn required_name(
-        &mut self,
-        table: &Table<'_>,
-        section: &str,
-        span: Range<usize>,
-        seen: &mut BTreeSet<String>,
-    ) -> Option<String> {
-        let Some((name, name_span)) = self.string(table, "name") else {
-            if !has_key(table, "name") {
-                self.problem(span, format!("this [[{section}]] has no name"));
-            }
-            return None;
-        };
-        if name.trim().is_empty() {
-            self.problem(name_span, format!("the {section} name is empty"));
-            return None;
-        }
-        if !seen.insert(name.clone()) {
-            self.problem(
-                name_span,
-                format!("two [[{section}]] entries are named \"{name}\""),
-            );
-            return None;
-        }
-        Some(name)
-    }
-
-    fn missing(&mut self, table: &Table<'_>, section: &str, key: &str, example: &str) {
-        let _ = table;
-        self.problems.push(
-            Problem::new(
-                Location::file(self.path),
-                format!("[{section}] is missing the required key `{key}`"),
-            )
-            .with_hint(format!("add: {example}")),
-        );
-    }
-
-    fn string(&mut self, table: &Table<'_>, key: &str) -> Option<(String, Range<usize>)> {
-        let value = get(table, key)?;
-        match value.get_ref() {
-            DeValue::String(text) => Some((text.to_string(), value.span())),
-            other => {
-                self.problem(
-                    value.span(),
-                    format!(
-                        "`{key}` must be a string in quotes, not a {}",
-                        other.type_str()
-                    ),
-                );
-                None
-            }
-        }
-    }
-
-    fn string_list(&mut self, value: &Spanned<DeValue<'_>>) -> Option<Vec<String>> {
-        let DeValue::Array(items) = value.get_ref() else {
-            self.problem(
-                value.span(),
-                "expected a list of strings, e.g. [\"tx\", \"ty\"]",
-            );
-            return None;
-        };
-        let mut list = Vec::new();
-        for item in items {
-            match item.get_ref() {
-                DeValue::String(text) => list.push(text.to_string()),
-                other => {
-                    self.problem(
-                        item.span(),
-                        format!("expected a string, not a {}", other.type_str()),
-                    );
-                    return None;
-                }
-            }
-        }
-        Some(list)
-    }
-
-    fn boolean(&mut self, table: &Table<'_>, key: &str) -> Option<bool> {
-        let value = get(table, key)?;
-        match value.get_ref() {
-            DeValue::Boolean(flag) => Some(*flag),
-            other => {
-                self.problem(
-                    value.span(),
-                    format!("`{key}` must be true or false, not a {}", other.type_str()),
-                );
-                None
-            }
-        }
-    }
-
-    /// A finite number (TOML integer or float).
-    fn number(&mut self, table: &Table<'_>, key: &str) -> Option<(f64, Range<usize>)> {
-        let value = get(table, key)?;
-        let parsed = match value.get_ref() {
-            DeValue::Integer(integer) => {
-                parse_integer(integer.as_str(), integer.radix()).map(|i| i as f64)
-            }
-            DeValue::Float(float) => float.as_str().replace('_', "").parse::<f64>().ok(),
-            other => {
-                self.problem(
-                    value.span(),
-                    format!("`{key}` must be a number, not a {}", other.type_str()),
-                );
-                return None;
-            }
-        };
-        match parsed {
-            Some(number) if number.is_finite() => Some((number, value.span())),
-            _ => {
-                self.problem(value.span(), format!("`{key}` must be a finite number"));
-                None
-            }
-        }
-    }
-
-    fn positive_integer(&mut self, table: &Table<'_>, key: &str) -> Option<usize> {
-        let value = get(table, key)?;
-        let DeValue::Integer(integer) = value.get_ref() else {
-            self.problem(
-                value.span(),
-                format!(
-                    "`{key}` must be a whole number, not a {}",
-                    value.get_ref().type_str()
-                ),
-            );
-            return None;
-        };
-        match parse_integer(integer.as_str(), integer.radix()) {
-            Some(n) if n > 0 => usize::try_from(n).ok(),
-            _ => {
-                self.problem(
-                    value.span(),
-                    format!(
-                        "`{key}` must be a positive whole number, not {}",
-                        integer.as_str()
-                    ),
-                );
-                None
-            }
-        }
-    }
-}
-
-fn get<'t, 'i>(table: &'t Table<'i>, key: &str) -> Option<&'t Spanned<DeValue<'i>>> {
-    table
-        .iter()
-        .find(|(name, _)| AsRef::<str>::as_ref(name.get_ref()) == key)
-        .map(|(_, value)| value)
-}
-
-fn has_key(table: &Table<'_>, key: &str) -> bool {
-    get(table, key).is_some()
-}
-
-fn parse_integer(text: &str, radix: u32) -> Option<i64> {
-    let digits = text.replace('_', "");
-    let digits = digits.trim_start_matches('+');
-    let digits = match radix {
-        16 => digits.trim_start_matches("0x"),
-        8 => digits.trim_start_matches("0o"),
-        2 => digits.trim_start_matches("0b"),
-        _ => digits,
-    };
-    i64::from_str_radix(digits, radix).ok()
 }
 
 #[cfg(test)]

@@ -1,4 +1,5 @@
 use super::*;
+use crate::error::Error;
 
 const MINIMAL: &str = r#"
 [acquisition]
