@@ -410,12 +410,22 @@ impl Reader<'_> {
     }
 
     fn thresholds(&mut self, root: &Table<'_>) -> Option<Thresholds> {
-        let defaults = Thresholds::default();
-        let Some(table) = self.section(root, "thresholds") else {
-            return Some(defaults);
-        };
-        let positive = |reader: &mut Self, key: &str, default: f64| match reader.number(table, key)
-        {
+        match self.section(root, "thresholds") {
+            Some(table) => read_thresholds(&mut self.0, table),
+            None => Some(Thresholds::default()),
+        }
+    }
+}
+
+/// The screening thresholds of a `[thresholds]` table (keys `schema::THRESHOLD_KEYS`);
+/// shared with the forecast spec, which takes the same section.
+pub(crate) fn read_thresholds(
+    reader: &mut TomlReader<'_>,
+    table: &Table<'_>,
+) -> Option<Thresholds> {
+    let defaults = Thresholds::default();
+    let positive =
+        |reader: &mut TomlReader<'_>, key: &str, default: f64| match reader.number(table, key) {
             Some((value, span)) if value <= 0.0 => {
                 reader.problem(span, format!("{key} must be positive, not {value}"));
                 None
@@ -423,43 +433,40 @@ impl Reader<'_> {
             Some((value, _)) => Some(value),
             None => Some(default),
         };
-        let caution = positive(self, "vif_caution", defaults.vif_caution);
-        let severe = positive(self, "vif_severe", defaults.vif_severe);
-        let index = positive(self, "condition_index", defaults.condition_index);
-        let index_severe = positive(
-            self,
-            "condition_index_severe",
-            defaults.condition_index_severe,
+    let caution = positive(reader, "vif_caution", defaults.vif_caution);
+    let severe = positive(reader, "vif_severe", defaults.vif_severe);
+    let index = positive(reader, "condition_index", defaults.condition_index);
+    let index_severe = positive(
+        reader,
+        "condition_index_severe",
+        defaults.condition_index_severe,
+    );
+    let shared_over_unique = positive(reader, "shared_over_unique", defaults.shared_over_unique);
+    let (caution, severe) = (caution?, severe?);
+    if caution > severe {
+        let span = get(table, "vif_caution").map_or(0..0, |v| v.span());
+        reader.problem(
+            span,
+            format!("vif_caution ({caution}) is above vif_severe ({severe})"),
         );
-        let shared_over_unique = positive(self, "shared_over_unique", defaults.shared_over_unique);
-        let (caution, severe) = (caution?, severe?);
-        if caution > severe {
-            let span = get(table, "vif_caution").map_or(0..0, |v| v.span());
-            self.problem(
-                span,
-                format!("vif_caution ({caution}) is above vif_severe ({severe})"),
-            );
-            return None;
-        }
-        let (index, index_severe) = (index?, index_severe?);
-        if index > index_severe {
-            let span = get(table, "condition_index").map_or(0..0, |v| v.span());
-            self.problem(
-                span,
-                format!(
-                    "condition_index ({index}) is above condition_index_severe ({index_severe})"
-                ),
-            );
-            return None;
-        }
-        Some(Thresholds {
-            vif_caution: caution,
-            vif_severe: severe,
-            condition_index: index,
-            condition_index_severe: index_severe,
-            shared_over_unique: shared_over_unique?,
-        })
+        return None;
     }
+    let (index, index_severe) = (index?, index_severe?);
+    if index > index_severe {
+        let span = get(table, "condition_index").map_or(0..0, |v| v.span());
+        reader.problem(
+            span,
+            format!("condition_index ({index}) is above condition_index_severe ({index_severe})"),
+        );
+        return None;
+    }
+    Some(Thresholds {
+        vif_caution: caution,
+        vif_severe: severe,
+        condition_index: index,
+        condition_index_severe: index_severe,
+        shared_over_unique: shared_over_unique?,
+    })
 }
 
 #[cfg(test)]

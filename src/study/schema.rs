@@ -16,6 +16,15 @@ pub const TOP_LEVEL: &[&str] = &[
 /// Group names of the variance partition, which a model may not take.
 pub const RESERVED_MODEL_NAMES: &[&str] = &["task", "nuisance", "unique"];
 
+/// Keys of a `[thresholds]` section (study file and forecast spec).
+pub const THRESHOLD_KEYS: &[&str] = &[
+    "vif_caution",
+    "vif_severe",
+    "condition_index",
+    "condition_index_severe",
+    "shared_over_unique",
+];
+
 /// Keys allowed inside each section (arrays of tables use the same list for every entry).
 pub fn keys_of(section: &str) -> &'static [&'static str] {
     match section {
@@ -28,12 +37,7 @@ pub fn keys_of(section: &str) -> &'static [&'static str] {
         "model" => &["name", "modulators"],
         "modulators" => &["event", "column"],
         "nuisance" => &["file", "columns"],
-        "thresholds" => &[
-            "vif_caution",
-            "vif_severe",
-            "condition_index",
-            "condition_index_severe",
-        ],
+        "thresholds" => THRESHOLD_KEYS,
         _ => &[],
     }
 }

@@ -161,3 +161,22 @@ fn too_many_models_and_reserved_names_are_rejected() {
         "{found:?}"
     );
 }
+
+#[test]
+fn every_threshold_can_be_set() {
+    let text = format!(
+        "{MINIMAL}\n[thresholds]\nvif_caution = 4\nvif_severe = 8\ncondition_index = 20\n\
+         condition_index_severe = 50\nshared_over_unique = 2\n"
+    );
+    let study = parse(&text).expect("valid");
+    assert_eq!(
+        study.thresholds,
+        Thresholds {
+            vif_caution: 4.0,
+            vif_severe: 8.0,
+            condition_index: 20.0,
+            condition_index_severe: 50.0,
+            shared_over_unique: 2.0,
+        }
+    );
+}
