@@ -21,7 +21,8 @@ use crate::screen::{
 };
 use crate::study::{Study, parse_study};
 use crate::trials::{
-    RunTrials, ScanTable, Table, collect_runs, fill_template, read_nuisance, read_per_scan,
+    NuisanceTable, PerScanTable, RunTrials, ScanTable, Table, collect_runs, fill_template,
+    read_nuisance, read_per_scan,
 };
 
 #[derive(Debug, Clone)]
@@ -175,7 +176,43 @@ fn check_run(
         )?),
         None => None,
     };
-    let design = build_design(settings, run, nuisance.as_ref())?;
+    let signal = match &options.signal {
+        Some(template) => {
+            let path = fill_template(template, &run.subject, &run.run);
+            Some(read_per_scan(
+                files,
+                &path,
+                &[],
+                run.scans,
+                &run.subject,
+                &run.run,
+                "signal",
+            )?)
+        }
+        None => None,
+    };
+    assess_run(
+        study,
+        settings,
+        run,
+        nuisance.as_ref(),
+        signal.as_ref(),
+        options,
+    )
+}
+
+/// Everything about one run once its tables are read: the design, its diagnostics,
+/// the screening flags and the run's status. Pure; the forecast calls it directly on
+/// simulated runs.
+pub fn assess_run(
+    study: &Study,
+    settings: &DesignSettings,
+    run: &RunTrials,
+    nuisance: Option<&NuisanceTable>,
+    signal: Option<&PerScanTable>,
+    options: &CheckOptions,
+) -> Result<RunReport> {
+    let design = build_design(settings, run, nuisance)?;
     let diagnostics = diagnose(&design);
     let thresholds = &study.thresholds;
     let dimensions = entangled_dimensions(&design, &diagnostics, thresholds);
@@ -194,23 +231,13 @@ fn check_run(
         flags.extend(absorbed);
         view
     });
-    let signal = match &options.signal {
-        Some(template) => {
-            let path = fill_template(template, &run.subject, &run.run);
-            let table = read_per_scan(
-                files,
-                &path,
-                &[],
-                run.scans,
-                &run.subject,
-                &run.run,
-                "signal",
-            )?;
+    let signal = match signal {
+        Some(table) => {
             let regions = signal::partition_signals(
                 settings,
                 &design,
                 &diagnostics,
-                &table,
+                table,
                 options.bootstrap,
             );
             flags.extend(signal::uncertainty_flags(&regions));

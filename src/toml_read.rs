@@ -253,6 +253,12 @@ impl<'a> TomlReader<'a> {
     /// A finite number (TOML integer or float).
     pub fn number(&mut self, table: &Table<'_>, key: &str) -> Option<(f64, Range<usize>)> {
         let value = get(table, key)?;
+        self.number_value(value, &format!("`{key}`"))
+            .map(|number| (number, value.span()))
+    }
+
+    /// `value` as a finite number; `what` names it in the message (e.g. "`tr`").
+    pub fn number_value(&mut self, value: &Value<'_>, what: &str) -> Option<f64> {
         let parsed = match value.get_ref() {
             DeValue::Integer(integer) => {
                 parse_integer(integer.as_str(), integer.radix()).map(|i| i as f64)
@@ -261,17 +267,31 @@ impl<'a> TomlReader<'a> {
             other => {
                 self.problem(
                     value.span(),
-                    format!("`{key}` must be a number, not a {}", other.type_str()),
+                    format!("{what} must be a number, not a {}", other.type_str()),
                 );
                 return None;
             }
         };
         match parsed {
-            Some(number) if number.is_finite() => Some((number, value.span())),
+            Some(number) if number.is_finite() => Some(number),
             _ => {
-                self.problem(value.span(), format!("`{key}` must be a finite number"));
+                self.problem(value.span(), format!("{what} must be a finite number"));
                 None
             }
+        }
+    }
+
+    /// `value` as a number or a list of numbers; `what` names it in messages.
+    pub fn numbers_value(&mut self, value: &Value<'_>, what: &str) -> Option<Vec<f64>> {
+        match value.get_ref() {
+            DeValue::Array(items) => {
+                let numbers: Vec<Option<f64>> = items
+                    .iter()
+                    .map(|item| self.number_value(item, what))
+                    .collect();
+                numbers.into_iter().collect()
+            }
+            _ => self.number_value(value, what).map(|n| vec![n]),
         }
     }
 

@@ -4,3 +4,5 @@
 pub mod choice;
 pub mod fit;
 pub mod learners;
+pub mod simulate;
+pub mod spec;

@@ -2,9 +2,10 @@
 //! Keys are those of DESIGN.md; `parse` turns the TOML text into a [`Study`].
 
 mod parse;
-mod schema;
+pub(crate) mod schema;
 
 pub use parse::parse_study;
+pub(crate) use parse::read_thresholds;
 
 use std::path::PathBuf;
 

@@ -3,14 +3,18 @@
 
 use crate::error::{Location, Problem};
 
-pub fn check_label(label: &str, what: &str, location: Location) -> Result<(), Problem> {
-    let plain = !label.is_empty()
+/// Letters, digits, `-`, `_` and `.`, and not `.` or `..`.
+pub fn is_plain_label(label: &str) -> bool {
+    !label.is_empty()
         && label != "."
         && label != ".."
         && label
             .chars()
-            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '-' | '_' | '.'));
-    if plain {
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '-' | '_' | '.'))
+}
+
+pub fn check_label(label: &str, what: &str, location: Location) -> Result<(), Problem> {
+    if is_plain_label(label) {
         Ok(())
     } else {
         Err(Problem::new(

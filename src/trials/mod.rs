@@ -6,7 +6,7 @@ mod runs;
 mod scans;
 mod table;
 
-pub use labels::check_label;
+pub use labels::{check_label, is_plain_label};
 pub use per_scan::{NuisanceTable, PerScanTable, fill_template, read_nuisance, read_per_scan};
 pub use runs::{EventTrials, ModulatorValues, RunTrials, collect_runs};
 pub use scans::ScanTable;

@@ -18,7 +18,7 @@
 mod delta;
 mod hybrid;
 mod kalman;
-mod kind;
+pub mod kind;
 
 pub use delta::{DeltaRule, DualRateDelta};
 pub use hybrid::HybridAssociability;
