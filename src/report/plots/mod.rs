@@ -18,6 +18,7 @@ mod legend;
 mod marks;
 pub mod palette;
 mod strip;
+pub mod variants;
 
 pub use bars::{ShareBar, SharePanel, model_pairs, share_bars, share_panels};
 pub use heatmap::{correlation_map, diverging, worst_run};

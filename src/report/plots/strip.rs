@@ -111,7 +111,7 @@ fn vif_mark(vif: f64, thresholds: &Thresholds) -> Mark {
 }
 
 /// Axis tick text for a log-scaled VIF axis.
-fn vif_tick(value: f64) -> String {
+pub(super) fn vif_tick(value: f64) -> String {
     if !value.is_finite() {
         String::new()
     } else if value >= 1e5 {
