@@ -75,22 +75,22 @@ pub fn render(report: &Report) -> String {
 // Small helpers.
 
 /// Text content.
-fn esc(text: &str) -> String {
+pub(crate) fn esc(text: &str) -> String {
     html_escape::encode_text(text).into_owned()
 }
 
 /// A double-quoted attribute value.
-fn attr(text: &str) -> String {
+pub(crate) fn attr(text: &str) -> String {
     html_escape::encode_double_quoted_attribute(text).into_owned()
 }
 
-fn section(id: &str, title: &str, body: &str) -> String {
+pub(crate) fn section(id: &str, title: &str, body: &str) -> String {
     format!("<section id=\"{id}\">\n<h2>{title}</h2>\n{body}</section>\n")
 }
 
 /// The glyph that stands for a status in tables; it matches the figure's markers, so
 /// a status never depends on colour alone.
-fn glyph(status: Status) -> &'static str {
+pub(crate) fn glyph(status: Status) -> &'static str {
     match status {
         Status::Ok => "○",
         Status::Caution => "▲",
@@ -98,7 +98,7 @@ fn glyph(status: Status) -> &'static str {
     }
 }
 
-fn badge(status: Status) -> String {
+pub(crate) fn badge(status: Status) -> String {
     format!(
         "<span class=\"status st-{0}\"><span aria-hidden=\"true\">{1}</span> {0}</span>",
         status.label(),
@@ -123,12 +123,12 @@ fn percent(value: f64) -> String {
 }
 
 /// A ratio for the page: `ratio` with a guard against non-finite values.
-fn number(value: Option<f64>) -> String {
+pub(crate) fn number(value: Option<f64>) -> String {
     ratio(value.filter(|v| v.is_finite()))
 }
 
 /// A setting as the user wrote it ("5", "2.5").
-fn plain(value: f64) -> String {
+pub(crate) fn plain(value: f64) -> String {
     if value.is_finite() {
         format!("{value}")
     } else {
@@ -142,7 +142,7 @@ fn vif_status(vif: Option<f64>, thresholds: &Thresholds) -> Status {
 }
 
 /// A figure, or a short note where it could not be drawn.
-fn figure(svg: Result<String, String>, caption: &str) -> String {
+pub(crate) fn figure(svg: Result<String, String>, caption: &str) -> String {
     match svg {
         Ok(svg) => format!("<figure>\n{svg}<figcaption>{caption}</figcaption>\n</figure>\n"),
         Err(reason) => format!(
@@ -160,7 +160,7 @@ fn participant_id(subject: &str) -> String {
 // Style. Meaning never rests on a background colour alone (glyphs and words carry the
 // statuses), so printing without backgrounds loses nothing.
 
-const STYLE: &str = r#"
+pub(crate) const STYLE: &str = r#"
 :root { --ink: #1d2b3f; --ember: #d97b29; --ember-dark: #9a4f10; --sand: #eadcb5; --stone: #8a8f96; --mist: #eef0f2; }
 * { box-sizing: border-box; }
 body { margin: 0 auto; max-width: 1160px; padding: 24px 28px 40px; color: var(--ink); background: #fff;
