@@ -34,6 +34,40 @@ pub enum Command {
         #[command(flatten)]
         output: OutputArgs,
     },
+    /// Before scanning: simulate learners on a planned task, fit them to the simulated
+    /// choices, check every simulated design, and compare task variants.
+    Forecast {
+        /// The forecast spec (TOML).
+        spec: PathBuf,
+        /// Simulated participants (overrides the spec's `participants`).
+        #[arg(long, value_name = "N")]
+        participants: Option<usize>,
+        /// Seed of the simulation (overrides the spec's `seed`).
+        #[arg(long, value_name = "S")]
+        seed: Option<u64>,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = ForecastFormat::Table)]
+        format: ForecastFormat,
+        /// Write the output to this file (atomically) instead of standard output.
+        #[arg(long, value_name = "FILE")]
+        out: Option<PathBuf>,
+        /// Also write each variant's simulated trial table and a matching study file
+        /// into this folder (one subfolder per variant), for `tangle check`.
+        #[arg(long, value_name = "DIR")]
+        write_trials: Option<PathBuf>,
+        /// No progress bar on standard error.
+        #[arg(long)]
+        quiet: bool,
+    },
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ForecastFormat {
+    Table,
+    Tsv,
+    Json,
+    /// A self-contained HTML page with a plot comparing the variants (use with --out).
+    Html,
 }
 
 #[derive(Debug, clap::Args)]

@@ -1,13 +1,17 @@
 //! The `tangle` binary: parses arguments, calls the library, maps errors to exit codes
 //! (0 done · 1 bad input or usage · 2 internal error · 3 a `--fail-on` status reached).
 
+use std::io::IsTerminal;
+use std::path::Path;
 use std::process::ExitCode;
 
 use clap::Parser;
+use indicatif::{ProgressBar, ProgressStyle};
 use tangle::check::{CheckOptions, check_file};
-use tangle::cli::{Cli, Command, FailOn, Format, Orthogonalise, OutputArgs};
+use tangle::cli::{Cli, Command, FailOn, ForecastFormat, Format, Orthogonalise, OutputArgs};
 use tangle::error::Error;
 use tangle::files::DiskFiles;
+use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
 use tangle::partition::signal::BootstrapSettings;
 use tangle::report::{self, Report};
 use tangle::screen::Status;
@@ -22,13 +26,31 @@ fn main() -> ExitCode {
 }
 
 fn run(cli: &Cli) -> ExitCode {
-    let (result, output) = match &cli.command {
-        Command::Check { study, output } => {
-            (check_file(&DiskFiles, study, options(output)), output)
+    let result = match &cli.command {
+        Command::Check { study, output } => check_file(&DiskFiles, study, options(output))
+            .and_then(|report| deliver(&report, output)),
+        Command::Demo { output } => {
+            tangle::demo::check_demo(options(output)).and_then(|report| deliver(&report, output))
         }
-        Command::Demo { output } => (tangle::demo::check_demo(options(output)), output),
+        Command::Forecast {
+            spec,
+            participants,
+            seed,
+            format,
+            out,
+            write_trials,
+            quiet,
+        } => forecast(
+            spec,
+            *participants,
+            *seed,
+            *format,
+            out.as_deref(),
+            write_trials.as_deref(),
+            *quiet,
+        ),
     };
-    match result.and_then(|report| deliver(&report, output)) {
+    match result {
         Ok(code) => code,
         Err(err) => {
             eprintln!("tangle: {err}");
@@ -38,6 +60,56 @@ fn run(cli: &Cli) -> ExitCode {
             })
         }
     }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn forecast(
+    path: &Path,
+    participants: Option<usize>,
+    seed: Option<u64>,
+    format: ForecastFormat,
+    out: Option<&Path>,
+    write_trials: Option<&Path>,
+    quiet: bool,
+) -> tangle::Result<ExitCode> {
+    let spec = read_spec(&DiskFiles, path, participants, seed)?;
+    let total = (spec.participants * spec.variants.len()) as u64;
+    let bar = if quiet || !std::io::stderr().is_terminal() {
+        ProgressBar::hidden()
+    } else {
+        let bar = ProgressBar::new(total);
+        bar.set_style(
+            ProgressStyle::with_template(
+                "simulating {bar:40} {pos}/{len} participant-variants, {eta} left",
+            )
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+        );
+        bar
+    };
+    let options = ForecastOptions {
+        keep_participants: write_trials.is_some(),
+    };
+    let result = run_forecast(&spec, options, &|| bar.inc(1));
+    bar.finish_and_clear();
+    let result = result?;
+    let report = &result.report;
+    let text = match format {
+        ForecastFormat::Table => report::forecast::table::render(report),
+        ForecastFormat::Tsv => report::forecast::tsv::render_joined(report),
+        ForecastFormat::Json => report::forecast::json(report),
+        ForecastFormat::Html => report::forecast::html::render(report),
+    };
+    if let Some(dir) = write_trials {
+        write_trial_folders(dir, &spec, &result)?;
+    }
+    match (out, format) {
+        (Some(path), ForecastFormat::Tsv) => {
+            tangle::output::write_tables(path, &report::forecast::tsv::render(report), "variants")?
+        }
+        (Some(path), _) => tangle::output::write_atomically(path, &text)?,
+        (None, _) => print_to_stdout(&text)?,
+    }
+    Ok(ExitCode::SUCCESS)
 }
 
 /// Standard output closed early (e.g. piped into `head`) is not an error: the reader has
@@ -80,7 +152,7 @@ fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
     };
     match (&output.out, output.format) {
         (Some(path), Format::Tsv) => {
-            tangle::output::write_tables(path, &report::tsv::render(report))?
+            tangle::output::write_tables(path, &report::tsv::render(report), "regressors")?
         }
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
         (None, _) => print_to_stdout(&text)?,

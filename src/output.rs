@@ -27,11 +27,15 @@ pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
     Ok(())
 }
 
-/// Writes TSV tables beside each other: the regressors table to `path`, every other
+/// Writes TSV tables beside each other: the table named `main` to `path`, every other
 /// table to `<stem>.<table>.tsv` in the same folder.
-pub fn write_tables(path: &Path, tables: &[crate::report::tsv::TsvTable]) -> Result<()> {
+pub fn write_tables(
+    path: &Path,
+    tables: &[crate::report::tsv::TsvTable],
+    main: &str,
+) -> Result<()> {
     for table in tables {
-        let target = if table.name == "regressors" {
+        let target = if table.name == main {
             path.to_path_buf()
         } else {
             let stem = path

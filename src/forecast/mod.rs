@@ -4,5 +4,59 @@
 pub mod choice;
 pub mod fit;
 pub mod learners;
+pub mod participant;
+pub mod report;
+pub mod run;
+pub mod schedule;
 pub mod simulate;
 pub mod spec;
+pub mod summary;
+pub mod write;
+
+pub use run::{Forecast, ForecastOptions, run_forecast};
+
+use std::path::Path;
+
+use crate::files::{InputFiles, read_text};
+
+/// Reads a forecast spec and the schedule files it names; `participants` and `seed`
+/// override the spec's own values when given (e.g. from the command line).
+pub fn read_spec(
+    files: &dyn InputFiles,
+    path: &Path,
+    participants: Option<usize>,
+    seed: Option<u64>,
+) -> crate::Result<spec::ForecastSpec> {
+    let text = read_text(files, path)?;
+    let mut spec = spec::parse_forecast(path, &text)?;
+    if let Some(n) = participants {
+        if n == 0 {
+            return Err(crate::Error::Usage(
+                "--participants must be at least 1".into(),
+            ));
+        }
+        spec.participants = n;
+    }
+    if let Some(seed) = seed {
+        spec.seed = seed;
+    }
+    schedule::load_schedules(files, &mut spec)?;
+    Ok(spec)
+}
+
+/// Writes one folder per variant under `dir` (see [`write::variant_files`]); each file
+/// appears whole or not at all.
+pub fn write_trial_folders(
+    dir: &Path,
+    spec: &spec::ForecastSpec,
+    forecast: &Forecast,
+) -> crate::Result<()> {
+    for (i, (variant, participants)) in spec.variants.iter().zip(&forecast.participants).enumerate()
+    {
+        let folder = dir.join(write::folder_name(i + 1, &variant.name));
+        for (name, contents) in write::variant_files(spec, variant, participants) {
+            crate::output::write_atomically(&folder.join(name), &contents)?;
+        }
+    }
+    Ok(())
+}

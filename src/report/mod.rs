@@ -1,6 +1,7 @@
 //! Renderers. Each reads the same [`model::Report`].
 
-mod format;
+pub mod forecast;
+pub(crate) mod format;
 pub mod html;
 pub mod json;
 pub mod methods;

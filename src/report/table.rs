@@ -67,7 +67,7 @@ const COMPACT: TableStyle = TableStyle::new()
     .header_separator(LineStyle::none().fill('─').junction('─'))
     .bottom_border(LineStyle::none().fill('─').junction('─'));
 
-fn percent(share: f64) -> String {
+pub(crate) fn percent(share: f64) -> String {
     format!("{:.1}%", 100.0 * share)
 }
 
@@ -144,7 +144,7 @@ fn cohort_partition(report: &Report) -> String {
 }
 
 /// Greedy word wrap for notes printed in a terminal.
-fn wrap(text: &str, width: usize, indent: &str) -> String {
+pub(crate) fn wrap(text: &str, width: usize, indent: &str) -> String {
     let mut lines = Vec::new();
     let mut line = String::new();
     for word in text.split_whitespace() {
@@ -163,7 +163,7 @@ fn wrap(text: &str, width: usize, indent: &str) -> String {
     lines.join("\n")
 }
 
-fn new_table(header: &[&str]) -> Table {
+pub(crate) fn new_table(header: &[&str]) -> Table {
     let mut table = Table::new();
     table
         .load_style(COMPACT)

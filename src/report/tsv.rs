@@ -352,7 +352,7 @@ fn signal(report: &Report) -> TsvTable {
 }
 
 /// Tables of the whole cohort have no run columns.
-fn plain_table(header: &[&str], rows: Vec<Vec<String>>, name: &'static str) -> TsvTable {
+pub(crate) fn plain_table(header: &[&str], rows: Vec<Vec<String>>, name: &'static str) -> TsvTable {
     let mut text = format!("{}\n", header.join("\t"));
     for row in rows {
         let cells: Vec<String> = row.iter().map(|c| clean(c)).collect();
@@ -418,6 +418,6 @@ fn cohort_partition(report: &Report) -> TsvTable {
 }
 
 /// Tabs and line breaks inside a cell would break the table.
-fn clean(cell: &str) -> String {
+pub(crate) fn clean(cell: &str) -> String {
     cell.replace(['\t', '\n', '\r'], " ")
 }

@@ -10,6 +10,7 @@ use toml::de::DeValue;
 use super::task::{TASK_KEYS, overlay, read_task};
 use super::*;
 use crate::Result;
+use crate::forecast::participant::{CUE, OUTCOME};
 use crate::study::schema::THRESHOLD_KEYS;
 use crate::study::{DEFAULT_HIGH_PASS, DEFAULT_MICROTIME, DEFAULT_REFERENCE, read_thresholds};
 use crate::toml_read::{Table, TomlReader, get, parse_integer, parse_toml};
@@ -446,9 +447,12 @@ fn compare(r: &mut TomlReader<'_>, root: &Table<'_>, learners: &[LearnerSpec]) -
     let Some(table) = r.section(root, "compare", COMPARE_KEYS) else {
         return (Some(all), Some(RankBy::Vif));
     };
+    // The events' onset regressors may be named too (e.g. to rank by cue/outcome overlap).
+    let mut known: Vec<String> = vec![CUE.to_string(), OUTCOME.to_string()];
+    known.extend(all.iter().cloned());
     let focus = match get(table, "regressors") {
         Some(value) => r.string_list(value).and_then(|list| {
-            let unknown: Vec<&String> = list.iter().filter(|n| !all.contains(n)).collect();
+            let unknown: Vec<&String> = list.iter().filter(|n| !known.contains(n)).collect();
             if unknown.is_empty() && !list.is_empty() {
                 return Some(list);
             }
@@ -462,7 +466,7 @@ fn compare(r: &mut TomlReader<'_>, root: &Table<'_>, learners: &[LearnerSpec]) -
                         format!("\"{}\" is", unknown[0])
                     }
                 ),
-                format!("modulators: {}", all.join(", ")),
+                format!("regressors: {}", known.join(", ")),
             );
             None
         }),

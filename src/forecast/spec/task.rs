@@ -74,7 +74,7 @@ pub fn read_task(
     place: &str,
 ) -> Option<Task> {
     let options = r.positive_integer(table, "options").unwrap_or(2);
-    if options < 2 || options > MAX_OPTIONS {
+    if !(2..=MAX_OPTIONS).contains(&options) {
         let span = get(table, "options").map_or(0..0, |v| v.span());
         r.problem(
             span,
