@@ -439,3 +439,80 @@ fn model_overlap_matches_numpy_canonical_correlations() {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
 }
+
+#[test]
+fn choice_probabilities_likelihood_and_fitted_temperature_match_scipy() {
+    use tangle::forecast::choice::{log_likelihood, log_probability, softmax};
+    use tangle::forecast::fit::fit_learner;
+    use tangle::forecast::learners::{ChoiceOutcome, DeltaRule, LearnerKind};
+
+    let expected = json("choice_likelihood.json");
+    // scipy 1.17.1 scipy.special.softmax and logsumexp of beta * values.
+    for case in expected["softmax"].as_array().unwrap() {
+        let beta = case["inverse_temperature"].as_f64().unwrap();
+        let values = numbers(&case["values"]);
+        let p = softmax(beta, &values);
+        for (i, (got, want)) in p.iter().zip(numbers(&case["probabilities"])).enumerate() {
+            assert!(
+                (got - want).abs() <= 1e-12,
+                "β = {beta}, p[{i}]: {got} vs {want}"
+            );
+            let lp = log_probability(beta, &values, i);
+            let want_lp = numbers(&case["log_probabilities"])[i];
+            assert_relative_eq!(lp, want_lp, max_relative = 1e-12, epsilon = 1e-12);
+        }
+    }
+
+    // The choice log-likelihood of a fixed 20-trial, 3-option sequence under a delta
+    // rule, by an independent plain Python loop (math.exp / math.log).
+    let sequence = &expected["sequence"];
+    let options = sequence["options"].as_u64().unwrap() as usize;
+    let initial_value = sequence["initial_value"].as_f64().unwrap();
+    let run: Vec<ChoiceOutcome> = sequence["choices"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(numbers(&sequence["rewards"]))
+        .map(|(c, reward)| ChoiceOutcome {
+            choice: c.as_u64().unwrap() as usize,
+            reward,
+        })
+        .collect();
+    let runs = vec![run];
+    for point in expected["log_likelihood"].as_array().unwrap() {
+        let alpha = point["learning_rate"].as_f64().unwrap();
+        let beta = point["inverse_temperature"].as_f64().unwrap();
+        let learner = DeltaRule {
+            learning_rate: alpha,
+        };
+        let got = log_likelihood(&learner, beta, options, initial_value, &runs);
+        let want = point["log_likelihood"].as_f64().unwrap();
+        assert!(
+            (got - want).abs() <= 1e-10,
+            "α = {alpha}, β = {beta}: {got} vs {want}"
+        );
+    }
+
+    // The ML inverse temperature with the learning rate fixed: scipy 1.17.1
+    // minimize_scalar (bounded, xatol 1e-10) against fit_learner's grid + Nelder–Mead.
+    let fitted = &expected["fitted_inverse_temperature"];
+    let alpha = fitted["learning_rate"].as_f64().unwrap();
+    let fit = fit_learner(
+        LearnerKind::Delta,
+        &[Some(alpha), None],
+        options,
+        initial_value,
+        &runs,
+    );
+    let beta = fitted["inverse_temperature"].as_f64().unwrap();
+    assert_eq!(fit.parameters[0], alpha);
+    assert_relative_eq!(fit.parameters[1], beta, max_relative = 1e-4);
+    let ll = fitted["log_likelihood"].as_f64().unwrap();
+    // At the optimum log L is flat: a 1e-4 relative error in β moves it by far less.
+    assert!(
+        (fit.log_likelihood - ll).abs() <= 1e-8,
+        "{} vs {ll}",
+        fit.log_likelihood
+    );
+    assert_eq!(fit.at_bound, vec![false, false]);
+}

@@ -20,6 +20,10 @@ Files
                                (Longley data; the fixture design's a:a_pe)
   demo_vif.json                VIFs of every run of the bundled demo study (demo-data/),
                                design built densely with numpy, VIFs by statsmodels
+  choice_likelihood.json       softmax choice probabilities (scipy.special), the choice
+                               log-likelihood of a delta-rule learner on a fixed sequence
+                               (plain Python loop) and its ML inverse temperature
+                               (scipy.optimize.minimize_scalar)
 """
 
 from __future__ import annotations
@@ -38,6 +42,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import scipy
+import scipy.optimize
+import scipy.special
 import scipy.stats
 import statsmodels
 import statsmodels.api as sm
@@ -715,6 +721,94 @@ def demo_references(out: Path) -> list[str]:
     return ["demo_vif.json"]
 
 
+# --------------------------------------------------------------------------- choice likelihood
+
+# Softmax cases: (inverse temperature, option values). Invented numbers; the last case's
+# beta * V spans ~100, so a naive exponential of it would overflow in float32 terms and
+# tests the max-shift.
+SOFTMAX_CASES = [
+    (2.0, [0.25, 0.75]),
+    (3.0, [0.1, 0.5, 0.9]),
+    (0.0, [0.0, 1.0, 3.0]),
+    (7.5, [0.2, -0.4, 0.7, 1.5]),
+    (40.0, [0.0, 1.0, 2.5]),
+]
+# A fixed, invented sequence of 20 trials with 3 options: the option chosen (from 0) and
+# the reward received. Written literally so that the Rust test reads the same trials.
+CHOICE_SEQUENCE_OPTIONS = 3
+CHOICE_SEQUENCE_INITIAL_VALUE = 0.5
+CHOICE_SEQUENCE_CHOICES = [0, 1, 2, 0, 0, 1, 2, 2, 0, 0, 1, 0, 2, 0, 0, 1, 0, 0, 2, 0]
+CHOICE_SEQUENCE_REWARDS = [1, 0, 1, 1, 0, 0, 0, 1, 1, 1, 0, 1, 0, 1, 1, 0, 1, 0, 0, 1]
+# (learning rate, inverse temperature) at which the log-likelihood is tabulated.
+CHOICE_LIKELIHOOD_POINTS = [(0.3, 4.0), (0.1, 1.0), (0.8, 12.0), (0.5, 0.0)]
+# The learning rate held fixed while the inverse temperature is fitted.
+CHOICE_FIT_LEARNING_RATE = 0.3
+CHOICE_FIT_BOUNDS = (0.0, 50.0)
+
+
+def delta_rule_log_likelihood(alpha: float, beta: float) -> float:
+    """Sum over trials of log P(choice) with P = exp(beta V_c) / sum_j exp(beta V_j),
+    a plain Python loop with the math module (no shift: the values stay in [0, 1]), and
+    the delta rule V_c <- V_c + alpha (r - V_c) after each choice (Rescorla & Wagner 1972)."""
+    values = [CHOICE_SEQUENCE_INITIAL_VALUE] * CHOICE_SEQUENCE_OPTIONS
+    total = 0.0
+    for choice, reward in zip(CHOICE_SEQUENCE_CHOICES, CHOICE_SEQUENCE_REWARDS):
+        weights = [math.exp(beta * v) for v in values]
+        total += math.log(weights[choice] / sum(weights))
+        values[choice] += alpha * (reward - values[choice])
+    return total
+
+
+def choice_references(out: Path) -> list[str]:
+    ver = versions()
+    softmax = []
+    for beta, values in SOFTMAX_CASES:
+        z = beta * np.asarray(values, float)
+        p = scipy.special.softmax(z)
+        log_p = z - scipy.special.logsumexp(z)
+        check(abs(p.sum() - 1.0) < 1e-14, "softmax probabilities do not sum to 1")
+        check(max_abs_err(np.exp(log_p), p) < 1e-15, "logsumexp and softmax disagree")
+        softmax.append({"inverse_temperature": beta, "values": floats(values),
+                        "probabilities": floats(p), "log_probabilities": floats(log_p)})
+
+    points = [{"learning_rate": a, "inverse_temperature": b,
+               "log_likelihood": delta_rule_log_likelihood(a, b)} for a, b in CHOICE_LIKELIHOOD_POINTS]
+    # beta = 0: every choice has probability 1/3, whatever the learning rate.
+    check(abs(points[-1]["log_likelihood"] - 20 * math.log(1 / 3)) < 1e-12,
+          "choice log-likelihood at beta = 0 is not 20 ln(1/3)")
+
+    alpha = CHOICE_FIT_LEARNING_RATE
+    result = scipy.optimize.minimize_scalar(lambda b: -delta_rule_log_likelihood(alpha, b),
+                                            bounds=CHOICE_FIT_BOUNDS, method="bounded",
+                                            options={"xatol": 1e-10})
+    beta_hat = float(result.x)
+    check(result.success and 0.5 < beta_hat < 45.0, f"the ML inverse temperature {beta_hat} is not interior")
+    h = 1e-5
+    slope = (delta_rule_log_likelihood(alpha, beta_hat + h) - delta_rule_log_likelihood(alpha, beta_hat - h)) / (2 * h)
+    check(abs(slope) < 1e-6, f"d logL / d beta = {slope} at the ML estimate")
+
+    write_json(out / "choice_likelihood.json", {
+        "source": ("softmax: scipy " + ver["scipy"] + " scipy.special.softmax(beta * values); log_probabilities: "
+                   "beta * values - scipy.special.logsumexp(beta * values). log_likelihood: a plain Python "
+                   "loop (math.exp, math.log, no max-shift) over the sequence, delta rule V_c <- V_c + "
+                   "alpha (r - V_c), every option starting at initial_value. fitted_inverse_temperature: "
+                   "scipy.optimize.minimize_scalar(method='bounded', bounds=[0, 50], xatol=1e-10) of "
+                   "minus that log-likelihood with the learning rate fixed; |d logL / d beta| < 1e-6 there "
+                   "by a central difference"),
+        "softmax": softmax,
+        "sequence": {"options": CHOICE_SEQUENCE_OPTIONS, "initial_value": CHOICE_SEQUENCE_INITIAL_VALUE,
+                     "choices": CHOICE_SEQUENCE_CHOICES, "rewards": floats(CHOICE_SEQUENCE_REWARDS)},
+        "log_likelihood": points,
+        "fitted_inverse_temperature": {
+            "source": f"scipy {ver['scipy']} scipy.optimize.minimize_scalar, bounded method, xatol 1e-10",
+            "learning_rate": alpha, "bounds": list(map(float, CHOICE_FIT_BOUNDS)),
+            "inverse_temperature": beta_hat,
+            "log_likelihood": delta_rule_log_likelihood(alpha, beta_hat),
+        },
+    })
+    return ["choice_likelihood.json"]
+
+
 # --------------------------------------------------------------------------- write / check
 
 def generate(out: Path) -> list[str]:
@@ -724,6 +818,7 @@ def generate(out: Path) -> list[str]:
     files += fixture_references(out)
     files += commonality_references(out)
     files += demo_references(out)
+    files += choice_references(out)
     return files
 
 
