@@ -20,6 +20,17 @@ pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
     temporary
         .write_all(contents.as_bytes())
         .map_err(output_error)?;
+    // A temporary file is private (0600); an output is an ordinary file the user's group
+    // and tools may read, as if it had been created directly.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        let permissions = std::fs::Permissions::from_mode(0o644);
+        temporary
+            .as_file()
+            .set_permissions(permissions)
+            .map_err(output_error)?;
+    }
     temporary.as_file().sync_all().map_err(output_error)?;
     temporary
         .persist(path)
@@ -46,4 +57,30 @@ pub fn write_tables(
         write_atomically(&target, &table.text)?;
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn written_files_are_whole_and_readable_by_others() {
+        let dir = tempfile::tempdir().expect("temporary folder");
+        let path = dir.path().join("new/folder/report.json");
+        write_atomically(&path, "{}\n").expect("written");
+        assert_eq!(std::fs::read_to_string(&path).expect("read"), "{}\n");
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::PermissionsExt;
+            let mode = std::fs::metadata(&path)
+                .expect("metadata")
+                .permissions()
+                .mode();
+            assert_eq!(mode & 0o777, 0o644);
+        }
+        let leftovers = std::fs::read_dir(path.parent().expect("folder"))
+            .expect("list")
+            .count();
+        assert_eq!(leftovers, 1, "no temporary file is left behind");
+    }
 }
