@@ -290,7 +290,7 @@ mod tests {
         assert_eq!(pearson(&[1.0, 1.0, 1.0], &[1.0, 2.0, 3.0]), None);
         assert_eq!(pearson(&[1.0, 2.0], &[1.0, 2.0]), None);
         let r = pearson(&[1.0, 2.0, 3.0, 4.0], &[2.0, 4.0, 5.0, 9.0]).unwrap();
-        // By hand: sxy = 10.5, sxx = 5, syy = 26.75 → r = 10.5/√133.75 = 0.90789…
-        assert!((r - 10.5 / 133.75f64.sqrt()).abs() < 1e-15);
+        // By hand: sxy = 11, sxx = 5, syy = 26 → r = 11/√130 = 0.96476…
+        assert!((r - 11.0 / 130f64.sqrt()).abs() < 1e-15);
     }
 }
