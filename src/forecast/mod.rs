@@ -5,6 +5,7 @@ pub mod choice;
 pub mod fit;
 pub mod learners;
 pub mod participant;
+pub mod ranking;
 pub mod report;
 pub mod run;
 pub mod schedule;

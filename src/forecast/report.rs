@@ -76,6 +76,8 @@ pub struct VariantForecast {
     /// `score_note` saying why.
     pub score: Option<f64>,
     pub score_note: Option<String>,
+    /// Cautions about this variant's fits (weak parameter recovery, fits at bounds).
+    pub notes: Vec<String>,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -137,6 +139,9 @@ pub struct RankEntry {
     pub rank: usize,
     pub variant: String,
     pub score: Option<f64>,
+    /// Share of paired bootstrap resamples of the participants in which this variant
+    /// scores lowest.
+    pub chance_best: f64,
 }
 
 /// Printed with every forecast.

@@ -6,9 +6,8 @@ use rayon::prelude::*;
 use super::participant::{
     CUE, OUTCOME, SimulatedParticipant, check_runs, run_trials, simulate, study_for,
 };
-use super::report::{
-    FORECAST_CAUTIONS, ForecastInfo, ForecastReport, RankEntry, TaskInfo, VariantForecast,
-};
+use super::ranking::{FocusValues, chance_best, rank, score};
+use super::report::{FORECAST_CAUTIONS, ForecastInfo, ForecastReport, TaskInfo, VariantForecast};
 use super::simulate::draw_persona;
 use super::spec::{ForecastSpec, RankBy};
 use super::summary::{
@@ -61,6 +60,7 @@ pub fn run_forecast(
     let learner_names: Vec<String> = spec.learners.iter().map(|l| l.name.clone()).collect();
     let mut variants = Vec::new();
     let mut kept = Vec::new();
+    let mut focus_values = Vec::new();
     for variant in &spec.variants {
         let study = study_for(spec, variant);
         let settings = DesignSettings::new(&study, true);
@@ -103,9 +103,11 @@ pub fn run_forecast(
             &tracked,
             &outcomes,
         ));
+        focus_values.push(focus_values_of(spec, &tracked, &outcomes));
         kept.push(outcomes.into_iter().filter_map(|o| o.kept).collect());
     }
-    let (ranking, verdict) = rank(spec, &mut variants);
+    let chance = chance_best(spec, &focus_values);
+    let (ranking, verdict) = rank(spec, &variants, &chance);
     Ok(Forecast {
         report: ForecastReport {
             tool: Default::default(),
@@ -152,9 +154,51 @@ fn summarise_variant(
         recovery: recovery(spec, outcomes),
         score: None,
         score_note: None,
+        notes: Vec::new(),
     };
+    variant.notes = recovery_notes(&variant.recovery);
     score(spec, &mut variant);
     variant
+}
+
+/// Below this correlation of true and fitted values a parameter counts as poorly
+/// recovered (a rule of thumb of ours; the field has no single standard).
+pub const WEAK_RECOVERY: f64 = 0.5;
+/// Above this share of fits at a bound, the bound shapes the estimates.
+pub const MANY_AT_BOUND: f64 = 0.25;
+
+fn recovery_notes(recovery: &[Recovery]) -> Vec<String> {
+    let mut notes = Vec::new();
+    let weak: Vec<String> = recovery
+        .iter()
+        .filter(|r| r.correlation.is_some_and(|c| c < WEAK_RECOVERY))
+        .map(|r| {
+            format!(
+                "{} {} (r = {:.2})",
+                r.learner,
+                r.parameter,
+                r.correlation.unwrap_or(0.0)
+            )
+        })
+        .collect();
+    if !weak.is_empty() {
+        notes.push(format!(
+            "Parameter recovery is weak for {}: on this task the fits follow the simulated learning only loosely, so these regressors are the fitted learners' (as in a real analysis), not the true ones. Consider a task, trial count or population that recovers parameters better before trusting fits.",
+            weak.join(", ")
+        ));
+    }
+    let bound: Vec<String> = recovery
+        .iter()
+        .filter(|r| r.at_bound > MANY_AT_BOUND)
+        .map(|r| format!("{} {} ({:.0}%)", r.learner, r.parameter, 100.0 * r.at_bound))
+        .collect();
+    if !bound.is_empty() {
+        notes.push(format!(
+            "Many fits end at a bound of {}: the data do not pin these parameters down.",
+            bound.join(", ")
+        ));
+    }
+    notes
 }
 
 /// Recovery of every fitted parameter of every generating learner, over the
@@ -190,77 +234,31 @@ fn recovery(spec: &ForecastSpec, outcomes: &[Outcome]) -> Vec<Recovery> {
     out
 }
 
-/// The ranking criterion of one variant: the worst focus regressor's median.
-fn score(spec: &ForecastSpec, variant: &mut VariantForecast) {
-    let mut worst: Option<f64> = Some(f64::NEG_INFINITY);
-    for m in variant
-        .regressors
-        .iter()
-        .filter(|m| spec.focus.contains(&m.regressor))
-    {
-        let median = match spec.rank_by {
-            RankBy::Vif => m.vif.median,
-            // An event has no partition; ranking by shares looks at modulators only.
-            RankBy::Shared => match &m.shared_with_other_models {
-                Some(shared) => shared.median,
-                None => continue,
-            },
-        };
-        match median {
-            Some(v) => worst = worst.map(|w| w.max(v)),
-            None => {
-                variant.score_note = Some(format!(
-                    "{}'s median is undefined: at least half of its runs have an exact dependency",
-                    m.regressor
-                ));
-                worst = None;
-            }
-        }
-    }
-    variant.score = worst.filter(|w| w.is_finite());
-}
-
-fn rank(spec: &ForecastSpec, variants: &mut [VariantForecast]) -> (Vec<RankEntry>, String) {
-    let mut order: Vec<usize> = (0..variants.len()).collect();
-    order.sort_by(|&a, &b| {
-        let key = |i: usize| variants[i].score.unwrap_or(f64::INFINITY);
-        key(a).total_cmp(&key(b)).then(a.cmp(&b))
-    });
-    let ranking: Vec<RankEntry> = order
+/// What the ranking's bootstrap needs: per participant and run, the focus regressors'
+/// VIFs (or shares with another model).
+fn focus_values_of(spec: &ForecastSpec, tracked: &[Tracked], outcomes: &[Outcome]) -> FocusValues {
+    let focus: Vec<usize> = tracked
         .iter()
         .enumerate()
-        .map(|(r, &i)| RankEntry {
-            rank: r + 1,
-            variant: variants[i].name.clone(),
-            score: variants[i].score,
-        })
+        .filter(|(_, t)| spec.focus.iter().any(|f| f == t.name()))
+        .filter(|(_, t)| spec.rank_by == RankBy::Vif || t.learner().is_some())
+        .map(|(i, _)| i)
         .collect();
-    let what = match spec.rank_by {
-        RankBy::Vif => "median VIF",
-        RankBy::Shared => "median share held with another model",
-    };
-    let focus = spec.focus.join(", ");
-    let verdict = match (ranking.first(), variants.first()) {
-        (Some(best), Some(planned)) if best.score.is_some() => {
-            let format = |v: Option<f64>| v.map_or("undefined".into(), |v| format!("{v:.3}"));
-            if best.variant == planned.name {
-                format!(
-                    "\"{}\" separates the learners best: the largest {what} over {focus} is {}. No variant improves on the task as planned.",
-                    best.variant,
-                    format(best.score)
-                )
-            } else {
-                format!(
-                    "\"{}\" separates the learners best: the largest {what} over {focus} is {}, against {} for the task as planned.",
-                    best.variant,
-                    format(best.score),
-                    format(planned.score)
-                )
-            }
-        }
-        _ => format!(
-            "No variant has a defined {what} over {focus}: every one has exact dependencies in at least half of its runs."
-        ),
-    };
-    (ranking, verdict)
+    outcomes
+        .iter()
+        .map(|o| {
+            o.runs
+                .iter()
+                .map(|run| {
+                    focus
+                        .iter()
+                        .map(|&i| match spec.rank_by {
+                            RankBy::Vif => run.vif[i],
+                            RankBy::Shared => run.shared[i],
+                        })
+                        .collect()
+                })
+                .collect()
+        })
+        .collect()
 }

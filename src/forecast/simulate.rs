@@ -19,6 +19,8 @@ pub enum Stream {
     Parameters = 1,
     Plan = 2,
     Behaviour = 3,
+    /// The ranking's bootstrap (one stream for the whole forecast).
+    Ranking = 4,
 }
 
 /// SplitMix64's output function (Steele, Lea & Flood 2014): spreads nearby integers

@@ -41,8 +41,9 @@ pub fn render(report: &ForecastReport) -> String {
         RankBy::Shared => "largest median share held with another model",
     };
     text.push_str(&format!(
-        "Task variants, best separated first (score: {criterion} over {}; participants by their worst run)\n",
-        info.focus.join(", ")
+        "Task variants, best separated first\n  score: {criterion} over {}\n  first in: share of {} paired bootstrap resamples of the participants in which the variant ranks first\n  ok / caution / severe: participants by their worst run\n",
+        info.focus.join(", "),
+        crate::forecast::ranking::RESAMPLES
     ));
     text.push_str(&ranking(report));
     text.push_str(&format!("\n{}\n", wrap(&report.verdict, 90, "")));
@@ -60,7 +61,7 @@ pub fn render(report: &ForecastReport) -> String {
 
 fn ranking(report: &ForecastReport) -> String {
     let mut table = new_table(&[
-        "rank", "variant", "score", "ok", "caution", "severe", "task",
+        "rank", "variant", "score", "first in", "ok", "caution", "severe",
     ]);
     for entry in &report.ranking {
         let Some(v) = report.variants.iter().find(|v| v.name == entry.variant) else {
@@ -74,12 +75,13 @@ fn ranking(report: &ForecastReport) -> String {
             entry
                 .score
                 .map_or("undefined".into(), |s| format!("{s:.3}")),
+            percent(entry.chance_best),
             share(v.participants.ok),
             share(v.participants.caution),
             share(v.participants.severe),
         ]);
     }
-    align_numbers(&mut table, &[0, 2, 3, 4, 5]);
+    align_numbers(&mut table, &[0, 2, 3, 4, 5, 6]);
     format!("{table}\n")
 }
 
@@ -184,6 +186,10 @@ fn variant_block(v: &VariantForecast) -> String {
     }
     if let Some(note) = &v.score_note {
         text.push_str(&format!("score undefined: {note}\n"));
+    }
+    for note in &v.notes {
+        let wrapped = wrap(note, 86, "    ");
+        text.push_str(&format!("  ! {}\n", wrapped.trim_start()));
     }
     text
 }

@@ -38,15 +38,14 @@ fn variants(report: &ForecastReport) -> TsvTable {
         .variants
         .iter()
         .map(|v| {
-            let rank = report
-                .ranking
-                .iter()
-                .find(|r| r.variant == v.name)
-                .map_or(0, |r| r.rank);
+            let entry = report.ranking.iter().find(|r| r.variant == v.name);
+            let rank = entry.map_or(0, |r| r.rank);
+            let chance = entry.map_or(0.0, |r| r.chance_best);
             vec![
                 v.name.clone(),
                 rank.to_string(),
                 exact(v.score),
+                chance.to_string(),
                 v.runs_checked.to_string(),
                 v.participants.ok.to_string(),
                 v.participants.caution.to_string(),
@@ -66,6 +65,7 @@ fn variants(report: &ForecastReport) -> TsvTable {
             "variant",
             "rank",
             "score",
+            "chance_best",
             "runs",
             "ok",
             "caution",

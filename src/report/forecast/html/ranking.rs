@@ -54,7 +54,7 @@ pub(super) fn ranking(report: &ForecastReport) -> String {
 
 fn table(report: &ForecastReport) -> String {
     let mut html = format!(
-        "<table class=\"ranking\">\n<thead><tr><th class=\"num\">rank</th><th>variant</th><th class=\"num\">score</th><th class=\"num\">{}</th><th class=\"num\">{}</th><th class=\"num\">{}</th><th>task</th></tr></thead>\n<tbody>\n",
+        "<table class=\"ranking\">\n<thead><tr><th class=\"num\">rank</th><th>variant</th><th class=\"num\">score</th><th class=\"num\" title=\"share of paired bootstrap resamples of the participants in which this variant ranks first\">first in</th><th class=\"num\">{}</th><th class=\"num\">{}</th><th class=\"num\">{}</th><th>task</th></tr></thead>\n<tbody>\n",
         badge(Status::Ok),
         badge(Status::Caution),
         badge(Status::Severe)
@@ -80,11 +80,12 @@ fn table(report: &ForecastReport) -> String {
         });
         let _ = writeln!(
             html,
-            "<tr><td class=\"num\">{}</td><th scope=\"row\"><a href=\"#{}\">{}</a></th><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}{note}</td></tr>",
+            "<tr><td class=\"num\">{}</td><th scope=\"row\"><a href=\"#{}\">{}</a></th><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}{note}</td></tr>",
             entry.rank,
             variant_id(index),
             esc(&v.name),
             score(entry.score),
+            share(entry.chance_best),
             cell(v.participants.ok),
             cell(v.participants.caution),
             cell(v.participants.severe),

@@ -85,6 +85,9 @@ pub(super) fn variant(report: &ForecastReport, index: usize, v: &VariantForecast
             esc(note)
         );
     }
+    for note in &v.notes {
+        let _ = writeln!(body, "<p class=\"note\">{}</p>", esc(note));
+    }
     let title = format!("Variant “{}”{rank}", esc(&v.name));
     section(&variant_id(index), &title, &body)
 }
