@@ -1,6 +1,7 @@
 #!/usr/bin/env python3
-"""Renders the demo study's HTML report in headless Chromium, checks that the page the
-browser built has the expected sections and plots, and saves a screenshot.
+"""Renders the demo study's HTML report and the demo forecast's HTML page in headless
+Chromium, checks that each page the browser built has the expected sections and plots, and
+saves a screenshot of each.
 
     python3 tests/browser/check_report.py [--chromium /usr/bin/chromium] [--out target/browser]
 
@@ -16,7 +17,14 @@ import sys
 import tempfile
 from pathlib import Path
 
-SECTIONS = ["overview", "shared", "correlations", "participants", "settings", "methods", "cautions"]
+PAGES = {
+    "demo-report": (["demo", "--format", "html"],
+                    ["overview", "shared", "correlations", "participants", "settings", "methods",
+                     "cautions"], 3),
+    "demo-forecast": (["forecast", "demo-data/forecast.toml", "--participants", "40", "--quiet",
+                       "--format", "html"],
+                      ["setup", "ranking", "variant-1", "variant-5", "cautions"], 2),
+}
 FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
          "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"]
 
@@ -33,35 +41,38 @@ def main() -> int:
     args = parser.parse_args()
     out = Path(args.out).resolve()
     out.mkdir(parents=True, exist_ok=True)
-    page = out / "demo-report.html"
-    subprocess.run(["target/release/tangle", "demo", "--format", "html", "--out", str(page)], check=True)
-
     problems = []
-    with tempfile.TemporaryDirectory() as profile:
-        dom = chromium(args.chromium, profile, "--dump-dom", page.as_uri()).stdout
-        for name in SECTIONS:
-            if f'<section id="{name}">' not in dom:
-                problems.append(f"section '{name}' is missing from the rendered page")
-        plots = len(re.findall(r"<svg\b", dom))
-        if plots < 3:
-            problems.append(f"only {plots} SVG plots in the rendered page (expected at least 3)")
-        if "<script" in dom:
-            problems.append("the page holds a script")
-        for text in ("NaN", ">inf<"):
-            if text in dom:
-                problems.append(f"the page shows '{text}'")
-        screenshot = out / "demo-report.png"
-        chromium(args.chromium, profile, f"--screenshot={screenshot}", "--window-size=1280,2400",
-                 page.as_uri())
-        if not screenshot.exists() or screenshot.stat().st_size < 10_000:
-            problems.append("no screenshot was written")
+    summaries = []
+    for name, (command, sections, min_plots) in PAGES.items():
+        page = out / f"{name}.html"
+        subprocess.run(["target/release/tangle", *command, "--out", str(page)], check=True)
+        with tempfile.TemporaryDirectory() as profile:
+            dom = chromium(args.chromium, profile, "--dump-dom", page.as_uri()).stdout
+            for section in sections:
+                if f'<section id="{section}"' not in dom:
+                    problems.append(f"{name}: section '{section}' is missing from the rendered page")
+            plots = len(re.findall(r"<svg\b", dom))
+            if plots < min_plots:
+                problems.append(f"{name}: only {plots} SVG plots (expected at least {min_plots})")
+            if "<script" in dom:
+                problems.append(f"{name}: the page holds a script")
+            for text in ("NaN", ">inf<"):
+                if text in dom:
+                    problems.append(f"{name}: the page shows '{text}'")
+            screenshot = out / f"{name}.png"
+            chromium(args.chromium, profile, f"--screenshot={screenshot}", "--window-size=1280,2400",
+                     page.as_uri())
+            if not screenshot.exists() or screenshot.stat().st_size < 10_000:
+                problems.append(f"{name}: no screenshot was written")
+        shown = screenshot.relative_to(Path.cwd()) if screenshot.is_relative_to(Path.cwd()) else screenshot
+        summaries.append(f"{name}: {len(sections)} sections and {plots} plots rendered; screenshot {shown}")
 
     if problems:
         for problem in problems:
             print(f"browser check: {problem}", file=sys.stderr)
         return 1
-    print(f"browser check: {len(SECTIONS)} sections and {plots} plots rendered; "
-          f"screenshot {screenshot.relative_to(Path.cwd()) if screenshot.is_relative_to(Path.cwd()) else screenshot}")
+    for summary in summaries:
+        print(f"browser check: {summary}")
     return 0
 
 
