@@ -234,3 +234,118 @@ fn the_command_writes_every_format() {
     assert!(tsv.starts_with("# variants\nvariant\trank\tscore"), "{tsv}");
     assert!(tsv.contains("# recovery\n"));
 }
+
+#[test]
+fn every_learner_kind_a_mixture_and_a_schedule_file_run_end_to_end() {
+    let spec = r#"
+[forecast]
+participants = 10
+seed = 5
+
+[task]
+options = 3
+schedule = "schedule.csv"
+trials = 30
+runs = 2
+tr = 2.0
+cue_to_outcome = [2.0, 4.0]
+outcome_to_cue = [2.0, 4.0]
+end_after_last_outcome = 12
+
+[[learner]]
+name = "kal"
+kind = "kalman"
+[learner.priors]
+initial_variance = 1.0
+observation_noise = { lognormal = [-1.0, 0.3] }
+drift = { uniform = [0.01, 0.1] }
+inverse_temperature = { gamma = [4, 1.25] }
+
+[[learner]]
+name = "dual"
+kind = "dual_rate"
+modulators = ["value", "pe", "rate"]
+[learner.priors]
+positive_rate = { beta = [3, 3] }
+negative_rate = { beta = [2, 5] }
+inverse_temperature = { uniform = [2, 8] }
+
+[generate]
+weights = { kal = 1, dual = 3 }
+"#;
+    let mut schedule = String::from("p1,p2,p3\n");
+    for t in 0..30 {
+        let p = if t < 15 { "0.9,0.5,0.1" } else { "0.1,0.5,0.9" };
+        schedule.push_str(p);
+        schedule.push('\n');
+    }
+    let files = MemoryFiles::default()
+        .with("plan/forecast.toml", spec)
+        .with("plan/schedule.csv", schedule);
+    let spec = read_spec(&files, Path::new("plan/forecast.toml"), None, None).expect("valid");
+    assert_eq!(spec.generating, vec![(0, 0.25), (1, 0.75)]);
+    let options = ForecastOptions {
+        keep_participants: true,
+    };
+    let forecast = run_forecast(&spec, options, &|| {}).unwrap();
+    let report = &forecast.report;
+    let names: Vec<&str> = report.variants[0]
+        .regressors
+        .iter()
+        .map(|r| r.regressor.as_str())
+        .collect();
+    // Defaults for the Kalman learner; cue quantities come before outcome ones.
+    assert_eq!(
+        names,
+        [
+            "cue",
+            "outcome",
+            "kal_value",
+            "kal_uncertainty",
+            "kal_pe",
+            "dual_value",
+            "dual_pe",
+            "dual_rate"
+        ]
+    );
+    // Both learners generated someone, and each has a recovery row per fitted parameter
+    // (the Kalman's fixed initial variance is not fitted, so it has none).
+    let generated: Vec<usize> = spec
+        .learners
+        .iter()
+        .enumerate()
+        .map(|(i, _)| {
+            forecast.participants[0]
+                .iter()
+                .filter(|p| p.persona.generator == i)
+                .count()
+        })
+        .collect();
+    assert_eq!(generated.iter().sum::<usize>(), 10);
+    assert!(generated.iter().all(|&n| n > 0), "{generated:?}");
+    let rows: Vec<(&str, &str)> = report.variants[0]
+        .recovery
+        .iter()
+        .map(|r| (r.learner.as_str(), r.parameter.as_str()))
+        .collect();
+    assert_eq!(
+        rows,
+        [
+            ("kal", "observation_noise"),
+            ("kal", "drift"),
+            ("kal", "inverse_temperature"),
+            ("dual", "positive_rate"),
+            ("dual", "negative_rate"),
+            ("dual", "inverse_temperature"),
+        ]
+    );
+    // A fixed parameter stays fixed in every fit; the schedule's probabilities are used.
+    for p in &forecast.participants[0] {
+        assert_eq!(p.fits[0].parameters[0], 1.0);
+        assert_eq!(p.plans[0].probabilities[20], vec![0.1, 0.5, 0.9]);
+        let last = p.plans[0].outcome_onsets[29];
+        assert_eq!(p.plans[0].scans, ((last + 12.0) / 2.0).ceil() as usize);
+    }
+    let json = tangle::report::forecast::json(report);
+    assert!(!json.contains("NaN") && !json.contains("inf"));
+}

@@ -220,7 +220,9 @@ fn quantities(
     name: &str,
 ) -> Option<Vec<Quantity>> {
     let Some(value) = get(table, "modulators") else {
-        return Some(kind.default_quantities().to_vec());
+        let mut defaults = kind.default_quantities().to_vec();
+        defaults.sort_by_key(|q| !q.at_cue());
+        return Some(defaults);
     };
     let keys = r.string_list(value)?;
     let mut list = Vec::new();
@@ -420,6 +422,8 @@ fn generating(
             ok = false;
         }
     }
+    // In the learners' order, whatever order the weights were written in.
+    chosen.sort_by_key(|&(i, _)| i);
     ok.then(|| chosen.into_iter().map(|(i, w)| (i, w / total)).collect())
 }
 
