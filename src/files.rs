@@ -7,6 +7,16 @@ use std::path::{Path, PathBuf};
 
 pub trait InputFiles: Sync {
     fn read(&self, path: &Path) -> io::Result<Vec<u8>>;
+
+    /// A reader over the file, for reading only its start (e.g. an image header).
+    fn open(&self, path: &Path) -> io::Result<Box<dyn io::Read + '_>> {
+        Ok(Box::new(io::Cursor::new(self.read(path)?)))
+    }
+
+    /// The entries of a folder (files and folders), sorted by name.
+    fn list(&self, folder: &Path) -> io::Result<Vec<PathBuf>>;
+
+    fn is_file(&self, path: &Path) -> bool;
 }
 
 /// Files on disk.
@@ -15,6 +25,22 @@ pub struct DiskFiles;
 impl InputFiles for DiskFiles {
     fn read(&self, path: &Path) -> io::Result<Vec<u8>> {
         std::fs::read(path)
+    }
+
+    fn open(&self, path: &Path) -> io::Result<Box<dyn io::Read + '_>> {
+        Ok(Box::new(io::BufReader::new(std::fs::File::open(path)?)))
+    }
+
+    fn list(&self, folder: &Path) -> io::Result<Vec<PathBuf>> {
+        let mut entries = std::fs::read_dir(folder)?
+            .map(|entry| entry.map(|e| e.path()))
+            .collect::<io::Result<Vec<_>>>()?;
+        entries.sort();
+        Ok(entries)
+    }
+
+    fn is_file(&self, path: &Path) -> bool {
+        path.is_file()
     }
 }
 
@@ -38,6 +64,28 @@ impl InputFiles for MemoryFiles {
             )
         })
     }
+
+    /// Every file under `folder`, and every folder on the way to one, one level down.
+    fn list(&self, folder: &Path) -> io::Result<Vec<PathBuf>> {
+        let mut entries: Vec<PathBuf> = self
+            .0
+            .keys()
+            .filter_map(|path| {
+                let rest = path.strip_prefix(folder).ok()?;
+                let first = rest.components().next()?;
+                Some(folder.join(first))
+            })
+            .collect();
+        entries.dedup();
+        if entries.is_empty() {
+            return Err(io::Error::new(io::ErrorKind::NotFound, "no such folder"));
+        }
+        Ok(entries)
+    }
+
+    fn is_file(&self, path: &Path) -> bool {
+        self.0.contains_key(path)
+    }
 }
 
 /// Reads a UTF-8 text file, dropping a byte-order mark; errors name the file.
@@ -58,4 +106,45 @@ pub fn read_text(files: &dyn InputFiles, path: &Path) -> crate::Result<String> {
         .with_hint("save it as UTF-8 CSV or TSV")
         .into()
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::io::Read;
+
+    #[test]
+    fn memory_folders_list_one_level_and_open_reads_the_start() {
+        let files = MemoryFiles::default()
+            .with("ds/sub-01/func/a.tsv", "x")
+            .with("ds/sub-01/func/b.tsv", "y")
+            .with("ds/sub-02/anat/c.nii", "z")
+            .with("ds/dataset_description.json", "{}");
+        let listed = files.list(Path::new("ds")).expect("a folder");
+        let names: Vec<&str> = listed.iter().filter_map(|p| p.to_str()).collect();
+        assert_eq!(
+            names,
+            ["ds/dataset_description.json", "ds/sub-01", "ds/sub-02"]
+        );
+        assert!(files.list(Path::new("elsewhere")).is_err());
+        assert!(files.is_file(Path::new("ds/sub-01/func/a.tsv")));
+        assert!(!files.is_file(Path::new("ds/sub-01")));
+        let mut start = [0u8; 1];
+        files
+            .open(Path::new("ds/sub-01/func/b.tsv"))
+            .and_then(|mut r| r.read_exact(&mut start))
+            .expect("readable");
+        assert_eq!(&start, b"y");
+    }
+
+    #[test]
+    fn disk_folders_list_sorted() {
+        let dir = tempfile::tempdir().expect("temporary folder");
+        for name in ["b.tsv", "a.tsv"] {
+            std::fs::write(dir.path().join(name), "x").expect("written");
+        }
+        let listed = DiskFiles.list(dir.path()).expect("a folder");
+        assert_eq!(listed, [dir.path().join("a.tsv"), dir.path().join("b.tsv")]);
+        assert!(DiskFiles.is_file(&listed[0]));
+    }
 }
