@@ -39,6 +39,7 @@
 //! # Ok::<(), tangle::Error>(())
 //! ```
 
+pub mod bids;
 pub mod check;
 pub mod cli;
 pub mod demo;

@@ -1,0 +1,1 @@
+//! NIfTI-1 and NIfTI-2 image headers (placeholder).

@@ -1,0 +1,1 @@
+//! BIDS JSON sidecars and their inheritance (placeholder).
