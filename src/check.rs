@@ -19,7 +19,7 @@ use crate::screen::{
     CLAIMS_NOTE, RunOutcome, claim_flags, entangled_dimensions, entanglement_flags, run_status,
     summarise_subjects, vif_flags,
 };
-use crate::study::{Study, parse_study};
+use crate::study::{NuisanceSpec, Study, parse_study};
 use crate::trials::{
     NuisanceTable, PerScanTable, RunTrials, ScanTable, Table, collect_runs, fill_template,
     read_nuisance, read_per_scan,
@@ -58,9 +58,15 @@ pub fn check_file(files: &dyn InputFiles, path: &Path, options: CheckOptions) ->
 }
 
 pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> Result<Report> {
-    let scans = ScanTable::load(files, &study.acquisition.scans)?;
-    let table = Table::read(files, &study.trials.file)?;
-    let runs = collect_runs(study, &table, &scans)?;
+    let (resolved, runs) = match &study.bids {
+        Some(source) => crate::bids::collect_bids_runs(files, study, source)?,
+        None => {
+            let scans = ScanTable::load(files, &study.acquisition.scans)?;
+            let table = Table::read(files, &study.trials.file)?;
+            (study.clone(), collect_runs(study, &table, &scans)?)
+        }
+    };
+    let study = &resolved;
     let runs = match &options.subjects {
         Some(wanted) => select_subjects(runs, wanted, study)?,
         None => runs,
@@ -169,7 +175,7 @@ fn check_run(
     let nuisance = match &study.nuisance {
         Some(spec) => Some(read_nuisance(
             files,
-            spec,
+            &with_bids_entities(spec, study, run)?,
             &run.subject,
             &run.run,
             run.scans,
@@ -199,6 +205,25 @@ fn check_run(
         signal.as_ref(),
         options,
     )
+}
+
+/// The nuisance template with a BIDS run's `{session}` and `{task}` filled in (the
+/// `{subject}` and `{run}` placeholders are filled for every study).
+fn with_bids_entities(spec: &NuisanceSpec, study: &Study, run: &RunTrials) -> Result<NuisanceSpec> {
+    let mut spec = spec.clone();
+    if let Some(source) = &study.bids {
+        spec.template = spec.template.replace("{task}", &source.task);
+    }
+    if spec.template.contains("{session}") {
+        let Some(session) = &run.session else {
+            return Err(Error::Usage(format!(
+                "the nuisance template \"{}\" uses {{session}}, but subject {} run {} has no session",
+                spec.template, run.subject, run.run
+            )));
+        };
+        spec.template = spec.template.replace("{session}", session);
+    }
+    Ok(spec)
 }
 
 /// Everything about one run once its tables are read: the design, its diagnostics,

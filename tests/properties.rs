@@ -134,6 +134,8 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
         let run = RunTrials {
             subject: "01".into(),
             run: "1".into(),
+            session: None,
+            flags: Vec::new(),
             scans: 160,
             events: vec![EventTrials {
                 name: "outcome".into(),

@@ -68,7 +68,7 @@ pub fn build_design(
         settings.reference,
     );
     let run_end = run.scans as f64 * settings.tr;
-    let mut flags = Vec::new();
+    let mut flags = run.flags.clone();
 
     // Trials starting after the last scan cannot affect the data: leave them out.
     let kept: Vec<Vec<bool>> = run
@@ -258,6 +258,7 @@ pub fn build_design(
         events,
         subject: run.subject.clone(),
         run: run.run.clone(),
+        session: run.session.clone(),
         scans: run.scans,
         regressors,
         sampled: sampled_columns,

@@ -52,6 +52,7 @@ pub struct Regressor {
 pub struct Design {
     pub subject: String,
     pub run: String,
+    pub session: Option<String>,
     pub scans: usize,
     pub regressors: Vec<Regressor>,
     /// Sampled columns before filtering, one per regressor.

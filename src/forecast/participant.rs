@@ -162,6 +162,7 @@ pub fn study_for(spec: &ForecastSpec, variant: &TaskVariant) -> Study {
             .collect(),
         nuisance: None,
         thresholds: spec.thresholds,
+        bids: None,
     }
 }
 
@@ -204,6 +205,8 @@ pub fn run_trials(
             RunTrials {
                 subject: participant.label.clone(),
                 run: (r + 1).to_string(),
+                session: None,
+                flags: Vec::new(),
                 scans: plan.scans,
                 events: vec![
                     event(CUE, &plan.cue_onsets, true, task.cue_duration),

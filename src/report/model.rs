@@ -110,6 +110,9 @@ pub struct RegressorReport {
 pub struct RunReport {
     pub subject: String,
     pub run: String,
+    /// The BIDS session; omitted from JSON when the study has none.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub session: Option<String>,
     pub scans: usize,
     /// Constant and cosine columns projected out.
     pub drift_columns: usize,
@@ -222,6 +225,7 @@ impl RunReport {
         RunReport {
             subject: design.subject,
             run: design.run,
+            session: design.session,
             scans: design.scans,
             drift_columns: design.drift_columns,
             events: design.events,

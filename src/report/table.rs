@@ -204,8 +204,12 @@ fn run_block(run: &RunReport) -> String {
             column.set_cell_alignment(CellAlignment::Right);
         }
     }
+    let session = run
+        .session
+        .as_ref()
+        .map_or_else(String::new, |s| format!(" · session {s}"));
     let mut text = format!(
-        "subject {} · run {} · {} scans · {} drift columns removed · {}\n{table}\n",
+        "subject {}{session} · run {} · {} scans · {} drift columns removed · {}\n{table}\n",
         run.subject,
         run.run,
         run.scans,

@@ -14,17 +14,29 @@ pub struct TsvTable {
 
 struct Builder {
     text: String,
+    /// A `session` column after `run`, when any run has a BIDS session.
+    sessions: bool,
 }
 
 impl Builder {
-    fn new(header: &[&str]) -> Self {
+    /// `header` starts with "subject", "run".
+    fn new(report: &Report, header: &[&str]) -> Self {
+        let sessions = report.runs.iter().any(|r| r.session.is_some());
+        let mut header = header.to_vec();
+        if sessions {
+            header.insert(2, "session");
+        }
         Builder {
             text: format!("{}\n", header.join("\t")),
+            sessions,
         }
     }
 
     fn row(&mut self, run: &RunReport, cells: Vec<String>) {
         let mut all = vec![clean(&run.subject), clean(&run.run)];
+        if self.sessions {
+            all.push(run.session.as_deref().map_or_else(|| "n/a".into(), clean));
+        }
         all.extend(cells.iter().map(|c| clean(c)));
         self.text.push_str(&all.join("\t"));
         self.text.push('\n');
@@ -72,24 +84,27 @@ pub fn render_joined(report: &Report) -> String {
 }
 
 fn regressors(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "regressor",
-        "kind",
-        "event",
-        "model",
-        "column",
-        "in_design",
-        "vif",
-        "se_inflation",
-        "efficiency",
-        "status",
-        "most_correlated",
-        "r",
-        "vif_serial",
-        "run_status",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "regressor",
+            "kind",
+            "event",
+            "model",
+            "column",
+            "in_design",
+            "vif",
+            "se_inflation",
+            "efficiency",
+            "status",
+            "most_correlated",
+            "r",
+            "vif_serial",
+            "run_status",
+        ],
+    );
     for run in &report.runs {
         for (index, entry) in run.regressors.iter().enumerate() {
             let regressor = &entry.regressor;
@@ -125,15 +140,18 @@ fn regressors(report: &Report) -> TsvTable {
 }
 
 fn dimensions(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "dimension",
-        "condition_index",
-        "regressor",
-        "proportion",
-        "entangled",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "dimension",
+            "condition_index",
+            "regressor",
+            "proportion",
+            "entangled",
+        ],
+    );
     for run in &report.runs {
         for (k, (index, row)) in run
             .condition_indices
@@ -168,15 +186,18 @@ fn dimensions(report: &Report) -> TsvTable {
 }
 
 fn model_sets(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "model",
-        "df",
-        "gvif",
-        "gvif_scaled",
-        "regressors",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "model",
+            "df",
+            "gvif",
+            "gvif_scaled",
+            "regressors",
+        ],
+    );
     for run in &report.runs {
         for set in &run.model_sets {
             table.row(
@@ -195,15 +216,18 @@ fn model_sets(report: &Report) -> TsvTable {
 }
 
 fn contrasts(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "contrast",
-        "first",
-        "second",
-        "efficiency",
-        "variance_inflation",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "contrast",
+            "first",
+            "second",
+            "efficiency",
+            "variance_inflation",
+        ],
+    );
     for run in &report.runs {
         for contrast in &run.contrasts {
             table.row(
@@ -222,7 +246,10 @@ fn contrasts(report: &Report) -> TsvTable {
 }
 
 fn dependencies(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&["subject", "run", "dependency", "regressor", "coefficient"]);
+    let mut table = Builder::new(
+        report,
+        &["subject", "run", "dependency", "regressor", "coefficient"],
+    );
     for run in &report.runs {
         for (number, dependency) in run.dependencies.iter().enumerate() {
             for (name, coefficient) in dependency.regressors.iter().zip(&dependency.coefficients) {
@@ -241,14 +268,17 @@ fn dependencies(report: &Report) -> TsvTable {
 }
 
 fn flags(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "severity",
-        "code",
-        "regressors",
-        "message",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "severity",
+            "code",
+            "regressors",
+            "message",
+        ],
+    );
     for run in &report.runs {
         for flag in &run.flags {
             table.row(
@@ -266,15 +296,18 @@ fn flags(report: &Report) -> TsvTable {
 }
 
 fn partition(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "regressor",
-        "r2",
-        "unique",
-        "groups",
-        "share",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "regressor",
+            "r2",
+            "unique",
+            "groups",
+            "share",
+        ],
+    );
     for run in &report.runs {
         for partition in &run.partition {
             for component in &partition.components {
@@ -295,15 +328,18 @@ fn partition(report: &Report) -> TsvTable {
 }
 
 fn model_overlap(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject",
-        "run",
-        "first",
-        "second",
-        "canonical_correlations",
-        "first_explained_by_second",
-        "second_explained_by_first",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "first",
+            "second",
+            "canonical_correlations",
+            "first_explained_by_second",
+            "second_explained_by_first",
+        ],
+    );
     for run in &report.runs {
         for overlap in &run.model_overlap {
             let correlations: Vec<String> = overlap
@@ -327,9 +363,12 @@ fn model_overlap(report: &Report) -> TsvTable {
 }
 
 fn signal(report: &Report) -> TsvTable {
-    let mut table = Builder::new(&[
-        "subject", "run", "region", "r2", "r2_base", "groups", "share", "low", "high",
-    ]);
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject", "run", "region", "r2", "r2_base", "groups", "share", "low", "high",
+        ],
+    );
     for run in &report.runs {
         for region in &run.signal {
             for c in &region.components {

@@ -23,6 +23,37 @@ pub struct Study {
     pub models: Vec<ModelSpec>,
     pub nuisance: Option<NuisanceSpec>,
     pub thresholds: Thresholds,
+    /// Set when the trials come from a BIDS dataset instead of one trial table.
+    pub bids: Option<BidsSource>,
+}
+
+/// Where a BIDS-organised study keeps its data (the study file's `[bids]` section).
+#[derive(Debug, Clone, PartialEq)]
+pub struct BidsSource {
+    /// The dataset root (resolved against the study file's folder).
+    pub root: PathBuf,
+    pub task: String,
+    /// Only these sessions / runs (labels without the `ses-` / `run-` prefix), if given.
+    pub sessions: Option<Vec<String>>,
+    pub runs: Option<Vec<String>>,
+    /// The events files' column naming each row's event (BIDS: `trial_type`).
+    pub type_column: String,
+    /// A folder of per-run model-output tables to join to the events, if any.
+    pub derivatives: Option<PathBuf>,
+    /// How derivative rows are matched to event rows.
+    pub join: JoinBy,
+    /// TR and volumes written in the study file, which override the data's (with a
+    /// flag when they disagree).
+    pub tr: Option<f64>,
+    pub scans: Option<usize>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum JoinBy {
+    /// The n-th derivative row belongs to the n-th event row.
+    RowOrder,
+    /// Rows with the same value in this column (present in both tables) belong together.
+    Column(String),
 }
 
 #[derive(Debug, Clone, PartialEq)]

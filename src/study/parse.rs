@@ -57,7 +57,9 @@ impl Reader<'_> {
         let study = self.section(root, "study").unwrap_or(&empty);
         let name = self.string(study, "name").map(|(name, _)| name);
 
-        let acquisition = self.acquisition(root, &dir);
+        let bids = self.bids(root, &dir);
+        let in_bids = matches!(bids, Some(Some(_)));
+        let acquisition = self.acquisition(root, &dir, in_bids);
         let filter = self.section(root, "filter").unwrap_or(&empty);
         let high_pass = match self.number(filter, "high_pass") {
             Some((value, span)) if value < 0.0 => {
@@ -69,8 +71,27 @@ impl Reader<'_> {
         };
         let hrf = self.section(root, "hrf").unwrap_or(&empty);
         let derivative = self.boolean(hrf, "derivative").unwrap_or(false);
-        let trials = self.trials(root, &dir);
-        let events = self.events(root);
+        let trials = match &bids {
+            Some(Some(source)) if !has_key(root, "trials") => Some(TrialSource {
+                file: source.root.clone(),
+                subject_column: crate::bids::SUBJECT_COLUMN.into(),
+                run_column: crate::bids::RUN_COLUMN.into(),
+            }),
+            Some(Some(_)) => {
+                let span = get(root, "trials").map_or(0..0, |v| v.span());
+                self.problem(
+                    span,
+                    "a BIDS study reads its trials from the dataset: remove [trials]",
+                );
+                None
+            }
+            _ => self.trials(root, &dir),
+        };
+        let type_column = match &bids {
+            Some(Some(source)) => Some(source.type_column.as_str()),
+            _ => None,
+        };
+        let events = self.events(root, type_column);
         let models = self.models(root, events.as_deref().unwrap_or(&[]));
         let nuisance = self.nuisance(root, &dir);
         let thresholds = self.thresholds(root);
@@ -91,11 +112,21 @@ impl Reader<'_> {
             models: models?,
             nuisance: nuisance?,
             thresholds: thresholds?,
+            bids: bids?,
         })
     }
 
-    fn acquisition(&mut self, root: &Table<'_>, dir: &Path) -> Option<Acquisition> {
-        let Some(table) = self.section(root, "acquisition") else {
+    /// With `bids`, `tr` and `scans` may be left out (they come from the data) and the
+    /// section itself is optional; absent values are 0 until [`crate::bids`] resolves them.
+    fn acquisition(&mut self, root: &Table<'_>, dir: &Path, bids: bool) -> Option<Acquisition> {
+        let empty = Table::default();
+        let section = self.section(root, "acquisition");
+        let section = if bids {
+            section.or(Some(&empty))
+        } else {
+            section
+        };
+        let Some(table) = section else {
             self.0.problems.push(
                 Problem::new(
                     Location::file(self.0.path),
@@ -122,6 +153,7 @@ impl Reader<'_> {
                 None
             }
             Some((tr, _)) => Some(tr),
+            None if bids && !has_key(table, "tr") => Some(0.0),
             None => {
                 self.missing(table, "acquisition", "tr", "tr = 2.0   # seconds");
                 None
@@ -137,6 +169,7 @@ impl Reader<'_> {
             }
             (Some(scans), None) => Some(ScanCounts::Fixed(scans)),
             (None, Some((file, _))) => Some(ScanCounts::File(dir.join(file))),
+            (None, None) if bids && !has_key(table, "scans") => Some(ScanCounts::Fixed(0)),
             (None, None) => {
                 if !has_key(table, "scans") {
                     self.missing(
@@ -202,7 +235,13 @@ impl Reader<'_> {
         })
     }
 
-    fn events(&mut self, root: &Table<'_>) -> Option<Vec<EventSpec>> {
+    /// `bids_type_column`: in a BIDS study, the column an event's `type` selects on when
+    /// it names no `type_column`; durations then default to the `duration` column.
+    fn events(
+        &mut self,
+        root: &Table<'_>,
+        bids_type_column: Option<&str>,
+    ) -> Option<Vec<EventSpec>> {
         let Some(entries) = self.array_of_tables(root, "event") else {
             self.0.problems.push(
                 Problem::new(
@@ -224,6 +263,10 @@ impl Reader<'_> {
                 self.string(table, "type"),
             ) {
                 (Some((column, _)), Some((value, _))) => Some(Some(RowSelector { column, value })),
+                (None, Some((value, _))) if bids_type_column.is_some() => Some(Some(RowSelector {
+                    column: bids_type_column.unwrap_or_default().to_string(),
+                    value,
+                })),
                 (None, None) => Some(None),
                 (Some((_, span)), None) | (None, Some((_, span))) => {
                     self.problem(
@@ -247,6 +290,7 @@ impl Reader<'_> {
                 }
             };
             let duration = match get(table, "duration") {
+                None if bids_type_column.is_some() => Some(Duration::Column("duration".into())),
                 None => Some(Duration::Seconds(0.0)),
                 Some(value) => match value.get_ref() {
                     DeValue::String(column) => Some(Duration::Column(column.to_string())),
@@ -406,6 +450,84 @@ impl Reader<'_> {
             template: template?,
             folder: dir.to_path_buf(),
             columns: columns?,
+        }))
+    }
+
+    /// `None`: a problem; `Some(None)`: no `[bids]` section.
+    fn bids(&mut self, root: &Table<'_>, dir: &Path) -> Option<Option<BidsSource>> {
+        let Some(table) = self.section(root, "bids") else {
+            return Some(None);
+        };
+        let root_dir = match self.string(table, "root") {
+            Some((folder, _)) => Some(dir.join(folder)),
+            None => {
+                self.missing(
+                    table,
+                    "bids",
+                    "root",
+                    "root = \"bids\"   # the dataset folder",
+                );
+                None
+            }
+        };
+        let task = match self.string(table, "task") {
+            Some((task, span))
+                if !task.chars().all(|c| c.is_ascii_alphanumeric()) || task.is_empty() =>
+            {
+                self.problem(span, format!("task label \"{task}\" must be letters and digits (BIDS labels are alphanumeric; no `task-` prefix)"));
+                None
+            }
+            Some((task, _)) => Some(task),
+            None => {
+                self.missing(table, "bids", "task", "task = \"<label in task-<label>>\"");
+                None
+            }
+        };
+        let list = |reader: &mut Self, key: &str| -> Option<Option<Vec<String>>> {
+            match get(table, key) {
+                None => Some(None),
+                Some(value) => reader.string_list(value).map(Some),
+            }
+        };
+        let sessions = list(self, "sessions");
+        let runs = list(self, "runs");
+        let type_column = self
+            .string(table, "type_column")
+            .map_or("trial_type".into(), |s| s.0);
+        let derivatives = self.string(table, "derivatives").map(|(f, _)| dir.join(f));
+        let join = match self.string(table, "join_column") {
+            Some((column, _)) => JoinBy::Column(column),
+            None => JoinBy::RowOrder,
+        };
+        let acquisition = match get(root, "acquisition").map(|v| v.get_ref()) {
+            Some(DeValue::Table(t)) => Some(t),
+            _ => None,
+        };
+        let tr = acquisition.and_then(|t| get(t, "tr")).and_then(|_| {
+            acquisition
+                .and_then(|t| self.number(t, "tr"))
+                .map(|(v, _)| v)
+        });
+        let scans = acquisition
+            .filter(|t| has_key(t, "scans"))
+            .and_then(|t| self.positive_integer(t, "scans"));
+        if acquisition.is_some_and(|t| has_key(t, "scans_file")) {
+            let span = acquisition
+                .and_then(|t| get(t, "scans_file"))
+                .map_or(0..0, |v| v.span());
+            self.problem(span, "a BIDS study reads each run's volumes from its image header; use scans = N to override them all, not scans_file");
+            return None;
+        }
+        Some(Some(BidsSource {
+            root: root_dir?,
+            task: task?,
+            sessions: sessions?,
+            runs: runs?,
+            type_column,
+            derivatives,
+            join,
+            tr,
+            scans,
         }))
     }
 

@@ -11,6 +11,7 @@ pub const TOP_LEVEL: &[&str] = &[
     "model",
     "nuisance",
     "thresholds",
+    "bids",
 ];
 
 /// Group names of the variance partition, which a model may not take.
@@ -38,6 +39,15 @@ pub fn keys_of(section: &str) -> &'static [&'static str] {
         "modulators" => &["event", "column"],
         "nuisance" => &["file", "columns"],
         "thresholds" => THRESHOLD_KEYS,
+        "bids" => &[
+            "root",
+            "task",
+            "sessions",
+            "runs",
+            "type_column",
+            "derivatives",
+            "join_column",
+        ],
         _ => &[],
     }
 }

@@ -12,8 +12,12 @@ use crate::study::{Duration, Study};
 pub struct RunTrials {
     pub subject: String,
     pub run: String,
+    /// The BIDS session, when the study has sessions.
+    pub session: Option<String>,
     pub scans: usize,
     pub events: Vec<EventTrials>,
+    /// Findings made while reading the run (e.g. a TR that disagrees with the data's).
+    pub flags: Vec<crate::flags::Flag>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -182,8 +186,10 @@ fn new_run(
     RunTrials {
         subject: subject.to_string(),
         run: run.to_string(),
+        session: None,
         scans,
         events,
+        flags: Vec::new(),
     }
 }
 
