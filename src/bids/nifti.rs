@@ -105,7 +105,8 @@ pub fn header_bytes(version: u8, dims: &[u64], tr: f64) -> Vec<u8> {
     // nifti1.h / nifti2.h: int sizeof_hdr at offset 0.
     out.int(0, 4, layout.size as i64);
     out.put(layout.magic_offset, layout.magics[0]);
-    // dim[0] is the number of dimensions; unused dims are 1, as nifti1.h recommends.
+    // dim[0] is the number of dimensions; nifti1.h has readers ignore dims after it,
+    // which are set to 1 here as is customary.
     out.int(layout.dim_offset, layout.dim_width, dims.len() as i64);
     for i in 1..=7 {
         let dim = dims.get(i - 1).copied().unwrap_or(1);
