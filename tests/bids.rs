@@ -250,3 +250,30 @@ fn the_study_file_overrides_the_data_with_a_flag() {
         "{err}"
     );
 }
+
+#[test]
+fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+    let flat = check_file(
+        &DiskFiles,
+        &demo.join("study.toml"),
+        CheckOptions::default(),
+    )
+    .unwrap();
+    let bids = check_file(
+        &DiskFiles,
+        &demo.join("bids-study.toml"),
+        CheckOptions::default(),
+    )
+    .unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(bids.runs.len(), 60);
+    assert_eq!(vifs(&bids), vifs(&flat));
+    for (b, f) in bids.runs.iter().zip(&flat.runs) {
+        let codes = |r: &tangle::report::model::RunReport| -> Vec<&str> {
+            r.flags.iter().map(|f| f.code).collect()
+        };
+        assert_eq!(codes(b), codes(f), "subject {} run {}", b.subject, b.run);
+        assert_eq!(b.status, f.status);
+    }
+    assert_eq!(bids.settings.tr, 1.5, "from bids/task-harbour_bold.json");
+}
