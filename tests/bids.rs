@@ -277,3 +277,86 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
     }
     assert_eq!(bids.settings.tr, 1.5, "from bids/task-harbour_bold.json");
 }
+
+#[test]
+fn sessions_are_kept_in_every_output_and_fill_nuisance_templates() {
+    let dir = tempfile::tempdir().unwrap();
+    let root = dir.path().join("ds");
+    // Slices over 0–1.2 s of a 2 s TR: the middle (0.6 s) is 0.30 of the TR.
+    write(
+        &root.join("task-lights_bold.json"),
+        br#"{"RepetitionTime": 2.0, "SliceTiming": [0.0, 0.4, 0.8, 1.2]}"#,
+    );
+    for session in ["pre", "post"] {
+        let func = root.join(format!("sub-01/ses-{session}/func"));
+        let stem = format!("sub-01_ses-{session}_task-lights_run-1");
+        let header = tangle::bids::nifti::header_bytes(2, &[8, 8, 4, SCANS], TR);
+        write(&func.join(format!("{stem}_bold.nii")), &header);
+        let mut events = String::from("onset\tduration\ttrial_type\tvalue\tpe\n");
+        for (cue, outcome, value, pe) in trials(1, if session == "pre" { 1 } else { 2 }) {
+            events.push_str(&format!(
+                "{cue}\t0\tcue\t{value}\tn/a\n{outcome}\t0.5\toutcome\tn/a\t{pe}\n"
+            ));
+        }
+        write(&func.join(format!("{stem}_events.tsv")), events.as_bytes());
+        let mut motion = String::from("tx\n");
+        for i in 0..SCANS {
+            motion.push_str(&format!(
+                "{}\n",
+                ((i * 37 + session.len() as u64) % 11) as f64 / 10.0
+            ));
+        }
+        write(
+            &dir.path().join(format!("conf/{session}-lights-01.tsv")),
+            motion.as_bytes(),
+        );
+    }
+    let study = dir.path().join("study.toml");
+    write(
+        &study,
+        format!(
+            "[acquisition]\nreference = 0.5\n[bids]\nroot = \"ds\"\ntask = \"lights\"\n\
+             [nuisance]\nfile = \"conf/{{session}}-{{task}}-{{subject}}.tsv\"\ncolumns = [\"tx\"]\n\
+             [[event]]\nname = \"cue\"\ntype = \"cue\"\n[[event]]\nname = \"outcome\"\ntype = \"outcome\"\n{MODELS}"
+        )
+        .as_bytes(),
+    );
+    let report =
+        check_file(&DiskFiles, &study, CheckOptions::default()).unwrap_or_else(|e| panic!("{e}"));
+    let sessions: Vec<Option<&str>> = report.runs.iter().map(|r| r.session.as_deref()).collect();
+    assert_eq!(
+        sessions,
+        [Some("post"), Some("pre")],
+        "sessions in label order"
+    );
+    assert!(
+        report
+            .runs
+            .iter()
+            .all(|r| r.regressors.iter().any(|g| g.regressor.name == "tx"))
+    );
+    let note = report.runs[0]
+        .flags
+        .iter()
+        .find(|f| f.code == "slice_timing_reference")
+        .expect("a note");
+    assert!(note.message.contains("0.30 of the TR"), "{}", note.message);
+    let json = tangle::report::json::render(&report);
+    assert!(json.contains("\"session\": \"pre\""));
+    let tsv = tangle::report::tsv::render_joined(&report);
+    assert!(
+        tsv.starts_with("subject\trun\tsession\tregressor"),
+        "{}",
+        &tsv[..80]
+    );
+    // The outcome's durations come from the events' duration column (0.5 s).
+    assert_eq!(report.runs[0].events[1].max_duration, Some(0.5));
+    // Filters: only the pre session.
+    let text = std::fs::read_to_string(&study).unwrap().replace(
+        "task = \"lights\"",
+        "task = \"lights\"\nsessions = [\"pre\"]",
+    );
+    write(&study, text.as_bytes());
+    let report = check_file(&DiskFiles, &study, CheckOptions::default()).unwrap();
+    assert_eq!(report.runs.len(), 1);
+}
