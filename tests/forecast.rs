@@ -89,7 +89,7 @@ fn fixed_short_delay_entangles_cue_and_outcome_and_jitter_does_not() {
     assert!(
         report
             .verdict
-            .contains("\"as planned\" separates the learners best"),
+            .contains("\"as planned\" separates the events best"),
         "{}",
         report.verdict
     );
@@ -348,4 +348,13 @@ weights = { kal = 1, dual = 3 }
     }
     let json = tangle::report::forecast::json(report);
     assert!(!json.contains("NaN") && !json.contains("inf"));
+}
+
+#[test]
+fn the_table_layout_is_stable() {
+    let spec = spec(Some(4));
+    let report = run_forecast(&spec, ForecastOptions::default(), &|| {})
+        .unwrap()
+        .report;
+    insta::assert_snapshot!(tangle::report::forecast::table::render(&report));
 }

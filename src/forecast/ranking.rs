@@ -11,6 +11,7 @@
 use rand::RngExt;
 use statrs::statistics::{Data, OrderStatistics};
 
+use super::participant::{CUE, OUTCOME};
 use super::report::{RankEntry, VariantForecast};
 use super::simulate::{Stream, stream};
 use super::spec::{ForecastSpec, RankBy};
@@ -127,6 +128,13 @@ pub fn rank(
         RankBy::Shared => "median share held with another model",
     };
     let focus = spec.focus.join(", ");
+    // Naming only the events' onsets, the ranking is about timing, not about learners.
+    let only_events = spec.focus.iter().all(|f| f == CUE || f == OUTCOME);
+    let separates = if only_events {
+        "separates the events best"
+    } else {
+        "separates the learners best"
+    };
     let verdict = match (ranking.first(), variants.first()) {
         (Some(best), Some(planned)) if best.score.is_some() => {
             let format = |v: Option<f64>| v.map_or("undefined".into(), |v| format!("{v:.3}"));
@@ -141,13 +149,13 @@ pub fn rank(
             );
             if best.variant == planned.name {
                 format!(
-                    "\"{}\" separates the learners best: the largest {what} over {focus} is {}. No variant improves on the task as planned. {sure}",
+                    "\"{}\" {separates}: the largest {what} over {focus} is {}. No variant improves on the task as planned. {sure}",
                     best.variant,
                     format(best.score)
                 )
             } else {
                 format!(
-                    "\"{}\" separates the learners best: the largest {what} over {focus} is {}, against {} for the task as planned. {sure}",
+                    "\"{}\" {separates}: the largest {what} over {focus} is {}, against {} for the task as planned. {sure}",
                     best.variant,
                     format(best.score),
                     format(planned.score)
