@@ -69,8 +69,10 @@ impl<'a> TomlReader<'a> {
         Location::at_offset(self.path, self.text, span.start)
     }
 
+    /// A problem at `span`, with a hint pointing to where the file's keys are described.
     pub fn problem(&mut self, span: Range<usize>, message: impl Into<String>) {
-        let problem = Problem::new(self.at(span), message);
+        let problem = Problem::new(self.at(span), message)
+            .with_hint("the README describes every key of this file and the values it takes");
         self.problems.push(problem);
     }
 
@@ -166,7 +168,11 @@ impl<'a> TomlReader<'a> {
     ) -> Option<String> {
         let Some((name, name_span)) = self.string(table, "name") else {
             if !has_key(table, "name") {
-                self.problem(span, format!("this [[{section}]] has no name"));
+                self.problem_with_hint(
+                    span,
+                    format!("this [[{section}]] has no name"),
+                    "add name = \"...\"".to_string(),
+                );
             }
             return None;
         };
@@ -175,9 +181,10 @@ impl<'a> TomlReader<'a> {
             return None;
         }
         if !seen.insert(name.clone()) {
-            self.problem(
+            self.problem_with_hint(
                 name_span,
                 format!("two [[{section}]] entries are named \"{name}\""),
+                format!("give every [[{section}]] its own name (remove or rename the second)"),
             );
             return None;
         }
@@ -200,12 +207,13 @@ impl<'a> TomlReader<'a> {
         match value.get_ref() {
             DeValue::String(text) => Some((text.to_string(), value.span())),
             other => {
-                self.problem(
+                self.problem_with_hint(
                     value.span(),
                     format!(
                         "`{key}` must be a string in quotes, not a {}",
                         other.type_str()
                     ),
+                    format!("put the value in double quotes, e.g. {key} = \"...\""),
                 );
                 None
             }
@@ -241,9 +249,10 @@ impl<'a> TomlReader<'a> {
         match value.get_ref() {
             DeValue::Boolean(flag) => Some(*flag),
             other => {
-                self.problem(
+                self.problem_with_hint(
                     value.span(),
                     format!("`{key}` must be true or false, not a {}", other.type_str()),
+                    format!("write {key} = true or {key} = false, without quotes"),
                 );
                 None
             }
@@ -265,9 +274,10 @@ impl<'a> TomlReader<'a> {
             }
             DeValue::Float(float) => float.as_str().replace('_', "").parse::<f64>().ok(),
             other => {
-                self.problem(
+                self.problem_with_hint(
                     value.span(),
                     format!("{what} must be a number, not a {}", other.type_str()),
+                    "write the number without quotes, e.g. 2.0".to_string(),
                 );
                 return None;
             }
@@ -275,7 +285,11 @@ impl<'a> TomlReader<'a> {
         match parsed {
             Some(number) if number.is_finite() => Some(number),
             _ => {
-                self.problem(value.span(), format!("{what} must be a finite number"));
+                self.problem_with_hint(
+                    value.span(),
+                    format!("{what} must be a finite number"),
+                    "nan and inf are not allowed here; write an ordinary number".to_string(),
+                );
                 None
             }
         }
@@ -298,12 +312,13 @@ impl<'a> TomlReader<'a> {
     pub fn positive_integer(&mut self, table: &Table<'_>, key: &str) -> Option<usize> {
         let value = get(table, key)?;
         let DeValue::Integer(integer) = value.get_ref() else {
-            self.problem(
+            self.problem_with_hint(
                 value.span(),
                 format!(
                     "`{key}` must be a whole number, not a {}",
                     value.get_ref().type_str()
                 ),
+                format!("write a whole number without quotes or a decimal point, e.g. {key} = 3"),
             );
             return None;
         };

@@ -93,6 +93,9 @@ fn events_table(files: &dyn InputFiles, source: &BidsSource, run: &RunFiles) -> 
 }
 
 /// TR and volumes of one run, with flags where the study file overrides the data.
+/// A TR above this many seconds is taken for one written in milliseconds.
+const MAX_PLAUSIBLE_TR: f64 = 100.0;
+
 fn acquisition(
     files: &dyn InputFiles,
     study: &Study,
@@ -117,6 +120,17 @@ fn acquisition(
             (given, study.path.clone())
         }
         (Some(given), None) => (given, study.path.clone()),
+        (None, Some((found, file))) if found > MAX_PLAUSIBLE_TR => {
+            return Err(Problem::new(
+                Location::file(&file),
+                format!("\"RepetitionTime\": {found} seconds is implausible"),
+            )
+            .with_hint(format!(
+                "BIDS gives RepetitionTime in seconds, not milliseconds: write {}, or set tr = <seconds> under [acquisition]",
+                found / 1000.0
+            ))
+            .into());
+        }
         (None, Some((found, file))) => (found, file),
         (None, None) => {
             return Err(Problem::new(
@@ -152,6 +166,18 @@ fn acquisition(
             given
         }
         (Some(given), None) => given,
+        (None, Some((header, path))) if header.volumes > crate::study::MAX_SCANS => {
+            return Err(Problem::new(
+                Location::file(path),
+                format!(
+                    "the image header gives {} volumes, more than tangle reads ({})",
+                    header.volumes,
+                    crate::study::MAX_SCANS
+                ),
+            )
+            .with_hint("the header may be damaged: re-export the image, or give scans = <volumes> under [acquisition]")
+            .into());
+        }
         (None, Some((header, _))) => header.volumes,
         (None, None) => {
             return Err(Problem::new(

@@ -166,6 +166,11 @@ impl Default for Thresholds {
 }
 
 pub const DEFAULT_MICROTIME: usize = 16;
+/// The most volumes per run tangle accepts (a day of scanning at TR 1 s); beyond that a
+/// count is taken for a typo or a damaged header rather than allocated.
+pub const MAX_SCANS: usize = 100_000;
+/// The most microtime bins per TR (the grid is scans × microtime long).
+pub const MAX_MICROTIME: usize = 1024;
 pub const DEFAULT_REFERENCE: f64 = 0.5;
 pub const DEFAULT_HIGH_PASS: f64 = 128.0;
 

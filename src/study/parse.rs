@@ -167,6 +167,14 @@ impl Reader<'_> {
                 self.problem(span, "give either scans or scans_file, not both");
                 None
             }
+            (Some(scans), None) if scans > MAX_SCANS => {
+                self.problem_with_hint(
+                    get(table, "scans").map_or(0..0, |v| v.span()),
+                    format!("scans = {scans} volumes per run is implausible"),
+                    format!("tangle reads at most {MAX_SCANS} volumes per run; give the number of volumes in one run"),
+                );
+                None
+            }
             (Some(scans), None) => Some(ScanCounts::Fixed(scans)),
             (None, Some((file, _))) => Some(ScanCounts::File(dir.join(file))),
             (None, None) if bids && !has_key(table, "scans") => Some(ScanCounts::Fixed(0)),
@@ -183,7 +191,17 @@ impl Reader<'_> {
             }
         };
         let microtime = if has_key(table, "microtime") {
-            self.positive_integer(table, "microtime")
+            match self.positive_integer(table, "microtime") {
+                Some(bins) if bins > MAX_MICROTIME => {
+                    self.problem_with_hint(
+                        get(table, "microtime").map_or(0..0, |v| v.span()),
+                        format!("microtime = {bins} bins per TR is more than tangle uses"),
+                        format!("use at most {MAX_MICROTIME} (16 is the common choice)"),
+                    );
+                    None
+                }
+                other => other,
+            }
         } else {
             Some(DEFAULT_MICROTIME)
         };

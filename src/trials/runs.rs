@@ -4,7 +4,7 @@
 use std::collections::HashMap;
 
 use super::{ScanTable, Table, check_label};
-use crate::error::{Error, Problem, Problems, Result};
+use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::study::{Duration, Study};
 
 /// Everything the design builder needs to know about one run.
@@ -107,7 +107,25 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
 
     let mut runs: Vec<RunTrials> = Vec::new();
     let mut index_of: HashMap<(String, String), usize> = HashMap::new();
+    // The first line of every row that holds an onset, to catch rows pasted twice.
+    let mut first_line: HashMap<&[String], usize> = HashMap::new();
     for row in &table.rows {
+        let has_onset = events
+            .iter()
+            .any(|columns| !super::is_missing(&row.cells[columns.onset]));
+        if has_onset {
+            if let Some(&earlier) = first_line.get(row.cells.as_slice()) {
+                problems.push(
+                    Problem::new(
+                        Location::line(&table.path, row.line),
+                        format!("this row repeats line {earlier} exactly"),
+                    )
+                    .with_hint("a row pasted twice holds the same trial twice: remove one of them"),
+                );
+                continue;
+            }
+            first_line.insert(row.cells.as_slice(), row.line);
+        }
         let subject = &row.cells[subject_column];
         let run = &row.cells[run_column];
         let key = (subject.clone(), run.clone());
@@ -152,7 +170,89 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
             }
         }
     }
+    for run in &runs {
+        check_times(table, study.acquisition.tr, run, &mut problems);
+    }
     problems.finish(runs)
+}
+
+/// A time as written in messages: huge values in exponent form.
+fn seconds(value: f64) -> String {
+    if value.abs() >= 1e7 {
+        format!("{value:e}")
+    } else {
+        value.to_string()
+    }
+}
+
+/// At most this many implausible times are listed per run.
+const MAX_TIME_PROBLEMS: usize = 5;
+
+/// Onsets and durations far outside the run are a wrong unit or time base, not late
+/// trials: onsets that fit the run once divided by 1000 were written in milliseconds;
+/// an onset more than 100 run lengths away, or a duration over 10 run lengths, is an
+/// error (the latter also keeps the microtime arithmetic in range).
+fn check_times(table: &Table, tr: f64, run: &RunTrials, problems: &mut Problems) {
+    if tr.is_nan() || tr <= 0.0 || run.scans == 0 {
+        return;
+    }
+    let length = run.scans as f64 * tr;
+    let at = |line: usize| Location::line(&table.path, line);
+    let trials = || {
+        run.events.iter().flat_map(|event| {
+            event
+                .onsets
+                .iter()
+                .zip(&event.durations)
+                .zip(&event.lines)
+                .map(|((&onset, &duration), &line)| (onset, duration, line))
+        })
+    };
+    let latest = trials().max_by(|a, b| a.0.total_cmp(&b.0));
+    if let Some((onset, _, line)) = latest {
+        if onset > 10.0 * length && onset / 1000.0 <= 1.5 * length {
+            problems.push(
+                Problem::new(
+                    at(line),
+                    format!(
+                        "subject {} run {}: onsets look like milliseconds: the latest, {onset}, is {:.0} times the run's length ({length} s = {} scans × {tr} s)",
+                        run.subject,
+                        run.run,
+                        onset / length,
+                        run.scans
+                    ),
+                )
+                .with_hint("onsets and durations are in seconds: divide those columns by 1000 (or check tr and scans)"),
+            );
+            return;
+        }
+    }
+    let mut found = 0;
+    for (onset, duration, line) in trials() {
+        let message = if onset > 100.0 * length || onset < -length.max(60.0) {
+            format!(
+                "subject {} run {}: onset {} s is far outside the run (0 to {length} s)",
+                run.subject,
+                run.run,
+                seconds(onset)
+            )
+        } else if duration > 10.0 * length {
+            format!(
+                "subject {} run {}: duration {} s is longer than ten runs ({length} s each)",
+                run.subject,
+                run.run,
+                seconds(duration)
+            )
+        } else {
+            continue;
+        };
+        found += 1;
+        if found <= MAX_TIME_PROBLEMS {
+            problems.push(Problem::new(at(line), message).with_hint(
+                "times are seconds from the start of the run's first volume: check the unit and the time base of the table",
+            ));
+        }
+    }
 }
 
 fn new_run(

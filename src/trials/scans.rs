@@ -6,6 +6,7 @@ use std::path::Path;
 use super::Table;
 use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::files::InputFiles;
+use crate::study::MAX_SCANS;
 use crate::study::ScanCounts;
 
 #[derive(Debug, Clone)]
@@ -41,12 +42,18 @@ impl ScanTable {
         for row in &table.rows {
             let key = (row.cells[subject].clone(), row.cells[run].clone());
             let count = match table.number(row, scans) {
-                Ok(Some(n)) if n >= 1.0 && n.fract() == 0.0 => n as usize,
-                Ok(_) => {
-                    problems.push(Problem::new(
-                        table.cell_location(row, scans),
-                        "scans must be a positive whole number",
-                    ));
+                Ok(Some(n)) if n >= 1.0 && n.fract() == 0.0 && n <= MAX_SCANS as f64 => n as usize,
+                Ok(value) => {
+                    let found = value.map_or("nothing".to_string(), |n| n.to_string());
+                    problems.push(
+                        Problem::new(
+                            table.cell_location(row, scans),
+                            format!("scans must be a positive whole number, not {found}"),
+                        )
+                        .with_hint(format!(
+                            "give the number of volumes of the run (1 to {MAX_SCANS})"
+                        )),
+                    );
                     continue;
                 }
                 Err(problem) => {
@@ -55,10 +62,13 @@ impl ScanTable {
                 }
             };
             if counts.insert(key.clone(), count).is_some() {
-                problems.push(Problem::new(
-                    Location::line(path, row.line),
-                    format!("subject {} run {} is listed twice", key.0, key.1),
-                ));
+                problems.push(
+                    Problem::new(
+                        Location::line(path, row.line),
+                        format!("subject {} run {} is listed twice", key.0, key.1),
+                    )
+                    .with_hint("keep one row per run"),
+                );
             }
         }
         problems.finish(ScanTable::PerRun {

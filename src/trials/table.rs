@@ -35,6 +35,15 @@ impl Table {
 
     pub fn parse(path: &Path, text: &str) -> Result<Table> {
         let delimiter = delimiter_for(path)?;
+        if let Some(offset) = text.find('\0') {
+            let line = text[..offset].matches('\n').count() + 1;
+            return Err(Problem::new(
+                Location::line(path, line),
+                "the file holds NUL bytes: it is a binary file, not a text table",
+            )
+            .with_hint("export the table as UTF-8 CSV or TSV text")
+            .into());
+        }
         let lines = LineIndex::new(text);
         let mut reader = csv::ReaderBuilder::new()
             .delimiter(delimiter)
@@ -77,9 +86,12 @@ impl Table {
             return Err(Error::Input(problems));
         }
         if rows.is_empty() {
-            return Err(
-                Problem::new(Location::file(path), "the table has a header but no rows").into(),
-            );
+            return Err(Problem::new(
+                Location::file(path),
+                "the table has a header but no rows",
+            )
+            .with_hint("the file may have been written before its program finished; export it again")
+            .into());
         }
         Ok(Table {
             path: path.to_path_buf(),
@@ -162,6 +174,18 @@ fn delimiter_for(path: &Path) -> Result<u8> {
 }
 
 fn check_headers(path: &Path, headers: &[String], delimiter: u8) -> Result<()> {
+    if headers.len() == 1 && headers[0].contains(';') {
+        return Err(Problem::new(
+            Location::line(path, 1),
+            "the header is separated by semicolons",
+        )
+        .with_hint(if delimiter == b',' {
+            "re-export with commas between cells and points as decimal separators (the semicolon form is a spreadsheet's regional setting)"
+        } else {
+            "re-export with tabs between cells and points as decimal separators"
+        })
+        .into());
+    }
     let other = if delimiter == b',' { '\t' } else { ',' };
     if headers.len() == 1 && headers[0].contains(other) {
         let (found, expected) = if delimiter == b',' {
@@ -184,6 +208,7 @@ fn check_headers(path: &Path, headers: &[String], delimiter: u8) -> Result<()> {
                 Location::cell(path, 1, format!("column {}", index + 1)),
                 "a column has no name in the header row",
             )
+            .with_hint("name every column in the first row (a trailing delimiter also makes an empty column)")
             .into());
         }
         if headers[..index].contains(header) {
@@ -191,6 +216,7 @@ fn check_headers(path: &Path, headers: &[String], delimiter: u8) -> Result<()> {
                 Location::cell(path, 1, format!("column {}", index + 1)),
                 format!("the column name \"{header}\" appears twice in the header"),
             )
+            .with_hint("rename one of the two columns so that every name is unique")
             .into());
         }
     }
