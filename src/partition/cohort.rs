@@ -2,6 +2,8 @@
 //! modulator's own share and shared shares, and the distribution of those means over
 //! the cohort (median and range).
 
+use std::collections::HashMap;
+
 use serde::Serialize;
 
 use super::RegressorPartition;
@@ -34,28 +36,36 @@ pub struct CohortShare {
 /// `runs`: (participant, the run's partitions), in report order. The result keeps the
 /// order in which participants, regressors and parts first appear.
 pub fn participant_means(runs: &[(&str, &[RegressorPartition])]) -> Vec<ParticipantShare> {
+    // An index by (subject, regressor, part) keeps this linear in the number of runs;
+    // `sums` keeps the order of first appearance.
     let mut sums: Vec<(ParticipantShare, f64)> = Vec::new();
+    let mut index: HashMap<(String, String, String), usize> = HashMap::new();
     let mut add = |subject: &str, partition: &RegressorPartition, part: &str, value: f64| {
-        let regressor = partition.regressor.as_str();
-        let found = sums
-            .iter_mut()
-            .find(|(s, _)| s.subject == subject && s.regressor == regressor && s.part == part);
-        match found {
-            Some((share, total)) => {
+        let key = (
+            subject.to_string(),
+            partition.regressor.clone(),
+            part.to_string(),
+        );
+        match index.get(&key) {
+            Some(&at) => {
+                let (share, total) = &mut sums[at];
                 share.runs += 1;
                 *total += value;
             }
-            None => sums.push((
-                ParticipantShare {
-                    subject: subject.to_string(),
-                    regressor: regressor.to_string(),
-                    model: partition.model.clone(),
-                    part: part.to_string(),
-                    runs: 1,
-                    mean: 0.0,
-                },
-                value,
-            )),
+            None => {
+                index.insert(key, sums.len());
+                sums.push((
+                    ParticipantShare {
+                        subject: subject.to_string(),
+                        regressor: partition.regressor.clone(),
+                        model: partition.model.clone(),
+                        part: part.to_string(),
+                        runs: 1,
+                        mean: 0.0,
+                    },
+                    value,
+                ));
+            }
         }
     };
     for (subject, partitions) in runs {
@@ -78,20 +88,22 @@ pub fn participant_means(runs: &[(&str, &[RegressorPartition])]) -> Vec<Particip
 
 /// Median and range over participants, per (regressor, part).
 pub fn summarise(means: &[ParticipantShare]) -> Vec<CohortShare> {
+    // One pass groups the values by key, in the order keys first appear.
     let mut keys: Vec<(&str, &str)> = Vec::new();
+    let mut values_of: Vec<Vec<f64>> = Vec::new();
+    let mut index: HashMap<(&str, &str), usize> = HashMap::new();
     for share in means {
         let key = (share.regressor.as_str(), share.part.as_str());
-        if !keys.contains(&key) {
+        let at = *index.entry(key).or_insert_with(|| {
             keys.push(key);
-        }
+            values_of.push(Vec::new());
+            keys.len() - 1
+        });
+        values_of[at].push(share.mean);
     }
     keys.into_iter()
-        .map(|(regressor, part)| {
-            let mut values: Vec<f64> = means
-                .iter()
-                .filter(|s| s.regressor == regressor && s.part == part)
-                .map(|s| s.mean)
-                .collect();
+        .zip(values_of)
+        .map(|((regressor, part), mut values)| {
             values.sort_by(f64::total_cmp);
             CohortShare {
                 regressor: regressor.to_string(),

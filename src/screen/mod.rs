@@ -291,11 +291,13 @@ pub struct RunOutcome<'a> {
 /// One summary per participant, in order of first appearance.
 pub fn summarise_subjects(runs: &[RunOutcome<'_>]) -> Vec<SubjectSummary> {
     let mut subjects: Vec<SubjectSummary> = Vec::new();
+    // Index by label: linear in the number of runs, in the order subjects first appear.
+    let mut index_of: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
     for run in runs {
-        let position = subjects.iter().position(|s| s.subject == run.subject);
-        let index = match position {
-            Some(i) => i,
+        let index = match index_of.get(run.subject) {
+            Some(&i) => i,
             None => {
+                index_of.insert(run.subject, subjects.len());
                 subjects.push(SubjectSummary {
                     subject: run.subject.to_string(),
                     worst_vif: None,
