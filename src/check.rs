@@ -10,14 +10,16 @@ use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
 use crate::error::{Error, Problems, Result};
 use crate::files::{InputFiles, read_text};
+use crate::partition::RegressorPartition;
+use crate::partition::cohort::{CohortShare, ParticipantShare};
 use crate::partition::signal::BootstrapSettings;
 use crate::partition::{self, cohort, signal};
 use crate::report::model::{
     Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
 };
 use crate::screen::{
-    CLAIMS_NOTE, RunOutcome, claim_flags, entangled_dimensions, entanglement_flags, run_status,
-    summarise_subjects, vif_flags,
+    CLAIMS_NOTE, RunOutcome, Status, SubjectSummary, claim_flags, entangled_dimensions,
+    entanglement_flags, run_status, summarise_subjects, vif_flags,
 };
 use crate::study::{NuisanceSpec, Study, parse_study};
 use crate::trials::{
@@ -36,6 +38,8 @@ pub struct CheckOptions {
     pub bootstrap: BootstrapSettings,
     /// Only these participants, when given.
     pub subjects: Option<Vec<String>>,
+    /// Only this shard of the participants, when given.
+    pub shard: Option<Shard>,
 }
 
 impl Default for CheckOptions {
@@ -46,6 +50,7 @@ impl Default for CheckOptions {
             signal: None,
             bootstrap: BootstrapSettings::default(),
             subjects: None,
+            shard: None,
         }
     }
 }
@@ -58,43 +63,117 @@ pub fn check_file(files: &dyn InputFiles, path: &Path, options: CheckOptions) ->
 }
 
 pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> Result<Report> {
-    let (resolved, runs) = match &study.bids {
-        Some(source) => crate::bids::collect_bids_runs(files, study, source)?,
-        None => {
-            let scans = ScanTable::load(files, &study.acquisition.scans)?;
-            let table = Table::read(files, &study.trials.file)?;
-            (study.clone(), collect_runs(study, &table, &scans)?)
+    let prepared = prepare(files, study, options)?;
+    let mut reports = Vec::new();
+    let summaries = prepared.run_all(files, &mut |run| {
+        reports.push(run);
+        Ok(())
+    })?;
+    Ok(prepared.head().into_report(reports, summaries))
+}
+
+/// Which participants a shard holds: participants sorted by label, participant `i`
+/// (0-based) belongs to shard `(i mod count) + 1`. Deterministic and balanced.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Shard {
+    /// 1-based.
+    pub index: usize,
+    pub count: usize,
+}
+
+impl Shard {
+    /// Parses `K/N` (1 ≤ K ≤ N).
+    pub fn parse(text: &str) -> std::result::Result<Shard, String> {
+        let bad = || format!("--shard: expected K/N with 1 <= K <= N (e.g. 3/10), got \"{text}\"");
+        let (k, n) = text.split_once('/').ok_or_else(bad)?;
+        let index: usize = k.trim().parse().map_err(|_| bad())?;
+        let count: usize = n.trim().parse().map_err(|_| bad())?;
+        if index == 0 || count == 0 || index > count {
+            return Err(bad());
         }
-    };
-    let study = &resolved;
-    let runs = match &options.subjects {
-        Some(wanted) => select_subjects(runs, wanted, study)?,
-        None => runs,
-    };
-    let settings = DesignSettings::new(study, options.centre);
-    let options = &options;
-    let results: Vec<Result<RunReport>> = runs
-        .par_iter()
-        .map(|run| check_run(files, study, &settings, run, options))
-        .collect();
-    let mut problems = Problems::default();
-    let reports: Vec<RunReport> = results
-        .into_iter()
-        .filter_map(|r| problems.keep(r))
-        .collect();
-    let reports = problems.finish(reports)?;
-    let outcomes: Vec<RunOutcome<'_>> = reports
-        .iter()
-        .map(|run| RunOutcome {
-            subject: &run.subject,
-            run: &run.run,
+        Ok(Shard { index, count })
+    }
+
+    /// The labels (sorted, distinct) of the participants this shard holds.
+    pub fn select<'a>(&self, labels: impl IntoIterator<Item = &'a str>) -> Vec<&'a str> {
+        let mut labels: Vec<&str> = labels.into_iter().collect();
+        labels.sort_unstable();
+        labels.dedup();
+        labels
+            .into_iter()
+            .enumerate()
+            .filter(|(i, _)| i % self.count + 1 == self.index)
+            .map(|(_, label)| label)
+            .collect()
+    }
+}
+
+/// A study read and its runs collected, ready to be checked run by run.
+pub struct Prepared {
+    study: Study,
+    runs: Vec<RunTrials>,
+    settings: DesignSettings,
+    options: CheckOptions,
+}
+
+/// Everything a report holds before its runs: the same for every shard of a study.
+pub struct ReportHead {
+    pub tool: ToolInfo,
+    pub study: StudyInfo,
+    pub settings: Settings,
+}
+
+/// The cohort views, computed from every run's [`RunDigest`].
+pub struct Summaries {
+    pub subjects: Vec<SubjectSummary>,
+    pub cohort: Cohort,
+    pub subject_partition: Vec<ParticipantShare>,
+    pub cohort_partition: Vec<CohortShare>,
+}
+
+impl ReportHead {
+    pub fn into_report(self, runs: Vec<RunReport>, summaries: Summaries) -> Report {
+        Report {
+            tool: self.tool,
+            study: self.study,
+            settings: self.settings,
+            runs,
+            subjects: summaries.subjects,
+            cohort: summaries.cohort,
+            subject_partition: summaries.subject_partition,
+            cohort_partition: summaries.cohort_partition,
+            claims_note: CLAIMS_NOTE,
+        }
+    }
+}
+
+/// What the cohort views need of a run; kept for every run while the full run reports
+/// are written out and dropped one by one.
+pub struct RunDigest {
+    pub subject: String,
+    pub run: String,
+    pub status: Status,
+    /// (regressor, VIF) of the regressors of interest with a defined VIF.
+    pub vifs: Vec<(String, f64)>,
+    pub largest_condition_index: Option<f64>,
+    /// (modulator, other model, share).
+    pub shared: Vec<(String, String, f64)>,
+    /// The partition without its commonality components.
+    pub partition: Vec<RegressorPartition>,
+}
+
+impl RunDigest {
+    pub fn of(run: &RunReport) -> Self {
+        RunDigest {
+            subject: run.subject.clone(),
+            run: run.run.clone(),
             status: run.status,
             vifs: run
                 .regressors
                 .iter()
                 .zip(&run.vif)
                 .filter(|(r, _)| r.regressor.kind.of_interest())
-                .filter_map(|(r, v)| v.map(|v| (r.regressor.name.as_str(), v)))
+                .filter_map(|(r, v)| v.map(|v| (r.regressor.name.clone(), v)))
                 .collect(),
             largest_condition_index: run.condition_indices.last().copied(),
             shared: run
@@ -108,31 +187,134 @@ pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions)
                                 && g.group != partition::TASK
                                 && g.group != partition::NUISANCE
                         })
-                        .map(|g| (p.regressor.as_str(), g.group.as_str(), g.share))
+                        .map(|g| (p.regressor.clone(), g.group.clone(), g.share))
                 })
                 .collect(),
-        })
-        .collect();
+            partition: run
+                .partition
+                .iter()
+                .map(|p| RegressorPartition {
+                    components: Vec::new(),
+                    ..p.clone()
+                })
+                .collect(),
+        }
+    }
+
+    fn outcome(&self) -> RunOutcome<'_> {
+        RunOutcome {
+            subject: &self.subject,
+            run: &self.run,
+            status: self.status,
+            vifs: self.vifs.iter().map(|(n, v)| (n.as_str(), *v)).collect(),
+            largest_condition_index: self.largest_condition_index,
+            shared: self
+                .shared
+                .iter()
+                .map(|(r, g, s)| (r.as_str(), g.as_str(), *s))
+                .collect(),
+        }
+    }
+}
+
+/// The cohort views of a report whose runs are `digests`, in report order (used by
+/// `check` and by `merge`, so that both give the same summaries).
+pub fn summarise(digests: &[RunDigest]) -> Summaries {
+    let outcomes: Vec<RunOutcome<'_>> = digests.iter().map(RunDigest::outcome).collect();
     let subjects = summarise_subjects(&outcomes);
-    let by_run: Vec<(&str, &[_])> = reports
+    let by_run: Vec<(&str, &[RegressorPartition])> = digests
         .iter()
         .map(|r| (r.subject.as_str(), r.partition.as_slice()))
         .collect();
     let subject_partition = cohort::participant_means(&by_run);
-    Ok(Report {
-        tool: ToolInfo::default(),
-        study: StudyInfo {
-            name: study.name.clone(),
-            file: study.path.display().to_string(),
-        },
-        settings: Settings::new(study, options.centre, options.orthogonalise),
-        cohort: Cohort::count(&subjects, reports.len()),
+    Summaries {
+        cohort: Cohort::count(&subjects, digests.len()),
         cohort_partition: cohort::summarise(&subject_partition),
         subject_partition,
-        claims_note: CLAIMS_NOTE,
         subjects,
-        runs: reports,
+    }
+}
+
+/// Reads the trial table (or BIDS dataset) and collects the runs to check, after
+/// `--subjects` and `--shard`.
+pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> Result<Prepared> {
+    let (resolved, runs) = match &study.bids {
+        Some(source) => crate::bids::collect_bids_runs(files, study, source)?,
+        None => {
+            let scans = ScanTable::load(files, &study.acquisition.scans)?;
+            let table = Table::read(files, &study.trials.file)?;
+            (study.clone(), collect_runs(study, &table, &scans)?)
+        }
+    };
+    let runs = match &options.subjects {
+        Some(wanted) => select_subjects(runs, wanted, &resolved)?,
+        None => runs,
+    };
+    let runs = match options.shard {
+        Some(shard) => {
+            let keep: std::collections::HashSet<String> = shard
+                .select(runs.iter().map(|r| r.subject.as_str()))
+                .into_iter()
+                .map(str::to_string)
+                .collect();
+            runs.into_iter()
+                .filter(|r| keep.contains(&r.subject))
+                .collect()
+        }
+        None => runs,
+    };
+    let settings = DesignSettings::new(&resolved, options.centre);
+    Ok(Prepared {
+        study: resolved,
+        runs,
+        settings,
+        options,
     })
+}
+
+/// Runs checked at once: enough to keep every core busy, few enough that memory stays
+/// bounded however many runs the study has.
+const RUNS_PER_BATCH: usize = 256;
+
+impl Prepared {
+    pub fn head(&self) -> ReportHead {
+        ReportHead {
+            tool: ToolInfo::default(),
+            study: StudyInfo {
+                name: self.study.name.clone(),
+                file: self.study.path.display().to_string(),
+            },
+            settings: Settings::new(&self.study, self.options.centre, self.options.orthogonalise),
+        }
+    }
+
+    /// Checks every run (in parallel, a batch at a time) and hands each run's report to
+    /// `each` in table order; returns the cohort views. Problems of all runs are
+    /// collected and returned together at the end.
+    pub fn run_all(
+        &self,
+        files: &dyn InputFiles,
+        each: &mut dyn FnMut(RunReport) -> Result<()>,
+    ) -> Result<Summaries> {
+        let mut problems = Problems::default();
+        let mut digests = Vec::with_capacity(self.runs.len());
+        for batch in self.runs.chunks(RUNS_PER_BATCH) {
+            let results: Vec<Result<RunReport>> = batch
+                .par_iter()
+                .map(|run| check_run(files, &self.study, &self.settings, run, &self.options))
+                .collect();
+            for result in results {
+                if let Some(report) = problems.keep(result) {
+                    if problems.is_empty() {
+                        digests.push(RunDigest::of(&report));
+                        each(report)?;
+                    }
+                }
+            }
+        }
+        let digests = problems.finish(digests)?;
+        Ok(summarise(&digests))
+    }
 }
 
 /// The runs of the participants in `wanted`; a label not in the table is an error.

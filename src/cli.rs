@@ -29,6 +29,19 @@ pub enum Command {
         #[command(flatten)]
         output: OutputArgs,
     },
+    /// Combine shard reports (`check --shard K/N --format json`) into the report of the
+    /// whole cohort.
+    Merge {
+        /// The shard reports (JSON), in any order.
+        #[arg(required = true, value_name = "FILES")]
+        files: Vec<PathBuf>,
+        /// Output format (the merged report is JSON).
+        #[arg(long, value_enum, default_value_t = MergeFormat::Json)]
+        format: MergeFormat,
+        /// Write the output to this file (atomically) instead of standard output.
+        #[arg(long, value_name = "FILE")]
+        out: Option<PathBuf>,
+    },
     /// Check the bundled demo study (invented data; works from any folder).
     Demo {
         #[command(flatten)]
@@ -62,6 +75,11 @@ pub enum Command {
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MergeFormat {
+    Json,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ForecastFormat {
     Table,
     Tsv,
@@ -81,6 +99,10 @@ pub struct OutputArgs {
     /// Check only these participants (comma-separated labels, as in the trial table).
     #[arg(long, value_name = "LIST", value_delimiter = ',')]
     pub subjects: Option<Vec<String>>,
+    /// Check only shard K of N: participants sorted by label, the i-th (from 0) goes to
+    /// shard (i mod N) + 1. Combine the shards' JSON with `tangle merge`.
+    #[arg(long, value_name = "K/N", value_parser = crate::check::Shard::parse)]
+    pub shard: Option<crate::check::Shard>,
     /// Exit with code 3 when any participant reaches this status.
     #[arg(long, value_enum, value_name = "STATUS")]
     pub fail_on: Option<FailOn>,

@@ -49,6 +49,7 @@ pub mod error;
 pub mod files;
 pub mod flags;
 pub mod forecast;
+pub mod merge;
 pub mod output;
 pub mod partition;
 pub mod report;

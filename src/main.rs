@@ -7,12 +7,13 @@ use std::process::ExitCode;
 
 use clap::Parser;
 use indicatif::{ProgressBar, ProgressStyle};
-use tangle::check::{CheckOptions, check_file};
+use tangle::check::{CheckOptions, check_file, prepare};
 use tangle::cli::{Cli, Command, FailOn, ForecastFormat, Format, Orthogonalise, OutputArgs};
 use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
 use tangle::partition::signal::BootstrapSettings;
+use tangle::report::json::JsonStream;
 use tangle::report::{self, Report};
 use tangle::screen::Status;
 
@@ -27,8 +28,12 @@ fn main() -> ExitCode {
 
 fn run(cli: &Cli) -> ExitCode {
     let result = match &cli.command {
+        Command::Check { study, output } if output.format == Format::Json => {
+            check_streaming(study, output)
+        }
         Command::Check { study, output } => check_file(&DiskFiles, study, options(output))
             .and_then(|report| deliver(&report, output)),
+        Command::Merge { files, out, .. } => merge(files, out.as_deref()),
         Command::Demo { output } => {
             tangle::demo::check_demo(options(output)).and_then(|report| deliver(&report, output))
         }
@@ -129,12 +134,95 @@ fn print_to_stdout(text: &str) -> tangle::Result<()> {
     }
 }
 
+/// `check --format json`: runs are written as they are checked, never all held at once.
+fn check_streaming(study: &Path, output: &OutputArgs) -> tangle::Result<ExitCode> {
+    let text = tangle::files::read_text(&DiskFiles, study)?;
+    let study = tangle::study::parse_study(study, &text)?;
+    let prepared = prepare(&DiskFiles, &study, options(output))?;
+    let head = prepared.head();
+    let mut summaries = None;
+    let mut failure = None;
+    let mut write = |out: &mut dyn std::io::Write| -> std::io::Result<()> {
+        let mut stream = JsonStream::begin(out, &head)?;
+        let result = prepared.run_all(&DiskFiles, &mut |run| {
+            stream.run(&run).map_err(|err| Error::Output {
+                path: "the report".into(),
+                source: err,
+            })
+        });
+        match result {
+            Ok(done) => {
+                stream.finish(&done)?;
+                summaries = Some(done);
+                Ok(())
+            }
+            Err(err) => {
+                failure = Some(err);
+                Err(std::io::Error::other("the check failed"))
+            }
+        }
+    };
+    let written = match &output.out {
+        Some(path) => tangle::output::write_atomically_with(path, &mut write),
+        None => {
+            let stdout = std::io::stdout().lock();
+            let mut buffered = std::io::BufWriter::new(stdout);
+            match write(&mut buffered) {
+                Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe && failure.is_none() => {
+                    Err(Error::Output {
+                        path: "standard output".into(),
+                        source: err,
+                    })
+                }
+                _ => Ok(()),
+            }
+        }
+    };
+    if let Some(err) = failure {
+        return Err(err);
+    }
+    written?;
+    let subjects = summaries.map(|s| s.subjects).unwrap_or_default();
+    Ok(fail_on(&subjects, output))
+}
+
+fn merge(files: &[std::path::PathBuf], out: Option<&Path>) -> tangle::Result<ExitCode> {
+    let mut shards = Vec::new();
+    for path in files {
+        let text = tangle::files::read_text(&DiskFiles, path)?;
+        shards.push((path.clone(), text));
+    }
+    let mut merged = Vec::new();
+    tangle::merge::merge_json(&shards, &mut merged)?;
+    let text = String::from_utf8(merged)
+        .map_err(|_| Error::Internal("the merged report is not UTF-8".into()))?;
+    match out {
+        Some(path) => tangle::output::write_atomically(path, &text)?,
+        None => print_to_stdout(&text)?,
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn fail_on(subjects: &[tangle::screen::SubjectSummary], output: &OutputArgs) -> ExitCode {
+    let limit = output.fail_on.map(|level| match level {
+        FailOn::Caution => Status::Caution,
+        FailOn::Severe => Status::Severe,
+    });
+    let reached = limit.is_some_and(|limit| subjects.iter().any(|s| s.status >= limit));
+    if reached {
+        ExitCode::from(3)
+    } else {
+        ExitCode::SUCCESS
+    }
+}
+
 fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
         centre: !output.no_centring,
         orthogonalise: output.orthogonalise == Orthogonalise::Serial,
         signal: output.signal.clone(),
         subjects: output.subjects.clone(),
+        shard: output.shard,
         bootstrap: BootstrapSettings {
             resamples: output.resamples,
             seed: output.seed,
@@ -157,14 +245,5 @@ fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
         (None, _) => print_to_stdout(&text)?,
     }
-    let limit = output.fail_on.map(|level| match level {
-        FailOn::Caution => Status::Caution,
-        FailOn::Severe => Status::Severe,
-    });
-    let reached = limit.is_some_and(|limit| report.subjects.iter().any(|s| s.status >= limit));
-    Ok(if reached {
-        ExitCode::from(3)
-    } else {
-        ExitCode::SUCCESS
-    })
+    Ok(fail_on(&report.subjects, output))
 }

@@ -7,6 +7,16 @@ use std::path::Path;
 use crate::error::{Error, Result};
 
 pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
+    write_atomically_with(path, &mut |out| out.write_all(contents.as_bytes()))
+}
+
+/// As [`write_atomically`], with the contents written by `write` (buffered), so that a
+/// large output is never held in memory whole. A target that exists and is not a plain
+/// file (e.g. `/dev/null`, a named pipe) is written to directly, never replaced.
+pub fn write_atomically_with(
+    path: &Path,
+    write: &mut dyn FnMut(&mut dyn Write) -> std::io::Result<()>,
+) -> Result<()> {
     let output_error = |source| Error::Output {
         path: path.to_path_buf(),
         source,
@@ -16,10 +26,21 @@ pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
         _ => Path::new("."),
     };
     std::fs::create_dir_all(folder).map_err(output_error)?;
+    if std::fs::metadata(path).is_ok_and(|m| !m.is_file() && !m.is_dir()) {
+        let file = std::fs::OpenOptions::new()
+            .write(true)
+            .open(path)
+            .map_err(output_error)?;
+        let mut buffered = std::io::BufWriter::new(file);
+        write(&mut buffered).map_err(output_error)?;
+        return buffered.flush().map_err(output_error);
+    }
     let mut temporary = tempfile::NamedTempFile::new_in(folder).map_err(output_error)?;
-    temporary
-        .write_all(contents.as_bytes())
-        .map_err(output_error)?;
+    {
+        let mut buffered = std::io::BufWriter::new(temporary.as_file_mut());
+        write(&mut buffered).map_err(output_error)?;
+        buffered.flush().map_err(output_error)?;
+    }
     // A temporary file is private (0600); an output is an ordinary file the user's group
     // and tools may read, as if it had been created directly.
     #[cfg(unix)]

@@ -1,7 +1,17 @@
 //! `--format json`: the report model as JSON (the fields of DESIGN.md). Undefined
 //! numbers are `null`, with a flag in the same run saying why.
+//!
+//! [`JsonStream`] writes the same bytes as [`render`] one run at a time, so that a large
+//! cohort's report never has to be held in memory whole.
+
+use std::io::Write;
+
+use serde::Serialize;
 
 use super::Report;
+use crate::check::{ReportHead, Summaries};
+use crate::report::model::RunReport;
+use crate::screen::CLAIMS_NOTE;
 
 pub fn render(report: &Report) -> String {
     match serde_json::to_string_pretty(report) {
@@ -12,4 +22,75 @@ pub fn render(report: &Report) -> String {
         // The model holds only strings, finite numbers and options: this cannot fail.
         Err(err) => format!("{{\"error\": \"cannot render the report: {err}\"}}\n"),
     }
+}
+
+/// Writes a report's JSON as its runs arrive, byte for byte what [`render`] writes for
+/// the whole report: the head, then each run, then the cohort views.
+pub struct JsonStream<W: Write> {
+    out: W,
+    runs: usize,
+}
+
+impl<W: Write> JsonStream<W> {
+    pub fn begin(mut out: W, head: &ReportHead) -> std::io::Result<Self> {
+        out.write_all(b"{")?;
+        let mut stream = JsonStream { out, runs: 0 };
+        stream.field("tool", &head.tool, true)?;
+        stream.field("study", &head.study, false)?;
+        stream.field("settings", &head.settings, false)?;
+        stream.out.write_all(b",\n  \"runs\": [")?;
+        Ok(stream)
+    }
+
+    pub fn run(&mut self, run: &RunReport) -> std::io::Result<()> {
+        if self.runs > 0 {
+            self.out.write_all(b",")?;
+        }
+        self.out.write_all(b"\n    ")?;
+        write_indented(&mut self.out, run, b"\n    ")?;
+        self.runs += 1;
+        Ok(())
+    }
+
+    pub fn finish(mut self, summaries: &Summaries) -> std::io::Result<W> {
+        if self.runs > 0 {
+            self.out.write_all(b"\n  ")?;
+        }
+        self.out.write_all(b"]")?;
+        self.field("subjects", &summaries.subjects, false)?;
+        self.field("cohort", &summaries.cohort, false)?;
+        self.field("subject_partition", &summaries.subject_partition, false)?;
+        self.field("cohort_partition", &summaries.cohort_partition, false)?;
+        self.field("claims_note", &CLAIMS_NOTE, false)?;
+        self.out.write_all(b"\n}\n")?;
+        self.out.flush()?;
+        Ok(self.out)
+    }
+
+    fn field<T: Serialize>(&mut self, key: &str, value: &T, first: bool) -> std::io::Result<()> {
+        if !first {
+            self.out.write_all(b",")?;
+        }
+        write!(self.out, "\n  \"{key}\": ")?;
+        write_indented(&mut self.out, value, b"\n  ")
+    }
+}
+
+/// `value` as pretty JSON, every line after the first indented to its depth. JSON
+/// strings never hold a raw line break, so every `\n` of the text is a line end.
+fn write_indented<W: Write, T: Serialize>(
+    out: &mut W,
+    value: &T,
+    newline: &[u8],
+) -> std::io::Result<()> {
+    let text = serde_json::to_vec_pretty(value).map_err(std::io::Error::other)?;
+    let mut lines = text.split(|&b| b == b'\n');
+    if let Some(first) = lines.next() {
+        out.write_all(first)?;
+    }
+    for line in lines {
+        out.write_all(newline)?;
+        out.write_all(line)?;
+    }
+    Ok(())
 }
