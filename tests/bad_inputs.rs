@@ -266,3 +266,129 @@ fn the_readme_lists_every_case() {
         );
     }
 }
+
+/// A small valid study (invented numbers) in a fresh folder.
+fn good_study() -> tempfile::TempDir {
+    let dir = tempfile::tempdir().unwrap();
+    let mut trials = String::from("subject,run,cue_onset,outcome_onset,pe,value\n");
+    for subject in ["01", "02"] {
+        for run in ["1", "2"] {
+            for t in 0..12usize {
+                let cue = 2.0 + 9.0 * t as f64 + (t % 3) as f64;
+                let _ = writeln!(
+                    trials,
+                    "{subject},{run},{cue},{},{},{}",
+                    cue + 2.0 + (t % 4) as f64,
+                    ((t * 7 + subject.len()) % 11) as f64 / 11.0 - 0.5,
+                    ((t * 5 + run.len()) % 13) as f64 / 13.0
+                );
+            }
+        }
+    }
+    let study = r#"[study]
+name = "<script>alert('x')</script> & \"quotes\" (invented)"
+[acquisition]
+tr = 2.0
+scans = 70
+[trials]
+file = "trials.csv"
+[[event]]
+name = "cue"
+onset = "cue_onset"
+[[event]]
+name = "outcome"
+onset = "outcome_onset"
+[[model]]
+name = "m<b>"
+modulators = [ { event = "outcome", column = "pe" }, { event = "cue", column = "value" } ]
+"#;
+    std::fs::write(dir.path().join("study.toml"), study).unwrap();
+    std::fs::write(dir.path().join("trials.csv"), trials).unwrap();
+    dir
+}
+
+fn tangle_in(dir: &Path) -> Command {
+    let mut command = Command::cargo_bin("tangle").unwrap();
+    command.current_dir(dir).env_remove("RUST_BACKTRACE");
+    command
+}
+
+#[test]
+fn a_failing_run_leaves_an_earlier_output_untouched() {
+    let dir = good_study();
+    let out = dir.path().join("results/nested/report.json");
+    tangle_in(dir.path())
+        .args(["check", "study.toml", "--format", "json", "--out"])
+        .arg(&out)
+        .assert()
+        .code(0);
+    // Folders are created as needed; the file is whole JSON.
+    let before = std::fs::read(&out).unwrap();
+    serde_json::from_slice::<serde_json::Value>(&before).expect("whole JSON");
+    // Break the trial table: the run fails and the earlier report stays as it was.
+    let trials = dir.path().join("trials.csv");
+    let text = std::fs::read_to_string(&trials).unwrap();
+    std::fs::write(&trials, text.replacen("0.5", "oops", 1) + "01,1,3\n").unwrap();
+    let output = tangle_in(dir.path())
+        .args(["check", "study.toml", "--format", "json", "--out"])
+        .arg(&out)
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("trials.csv, line"));
+    assert_eq!(std::fs::read(&out).unwrap(), before);
+    // No temporary file is left beside it.
+    let left: Vec<_> = std::fs::read_dir(out.parent().unwrap())
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name())
+        .collect();
+    assert_eq!(left, [std::ffi::OsString::from("report.json")]);
+}
+
+#[test]
+fn check_output_is_the_same_for_one_and_two_threads_and_every_run() {
+    let dir = good_study();
+    let run = |threads: &str| {
+        let output = tangle_in(dir.path())
+            .env("RAYON_NUM_THREADS", threads)
+            .args(["check", "study.toml", "--format", "json"])
+            .output()
+            .unwrap();
+        assert_eq!(output.status.code(), Some(0));
+        output.stdout
+    };
+    let one = run("1");
+    assert!(!one.is_empty());
+    assert_eq!(one, run("2"));
+    assert_eq!(one, run("2"));
+    assert_eq!(one, run("1"));
+}
+
+#[test]
+fn json_holds_no_nan_or_infinity_and_html_escapes_user_text() {
+    let dir = good_study();
+    let output = tangle_in(dir.path())
+        .args(["check", "study.toml", "--format", "json"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8(output.stdout).unwrap();
+    let json: serde_json::Value = serde_json::from_str(&text).expect("JSON");
+    assert!(json.is_object());
+    for bad in ["NaN", "Infinity", "inf,"] {
+        assert!(!text.contains(bad), "{bad} in the JSON");
+    }
+    let html = dir.path().join("report.html");
+    tangle_in(dir.path())
+        .args(["check", "study.toml", "--format", "html", "--out"])
+        .arg(&html)
+        .assert()
+        .code(0);
+    let page = std::fs::read_to_string(html).unwrap();
+    assert!(
+        !page.contains("<script>alert"),
+        "the study name is not escaped"
+    );
+    assert!(!page.contains("m<b>"), "a model name is not escaped");
+    assert!(page.contains("&lt;script&gt;") || page.contains("&#x3C;script"));
+}
