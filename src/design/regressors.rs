@@ -40,7 +40,9 @@ impl Grid {
     pub fn event_bins(&self, onset: f64, duration: f64) -> (i64, i64) {
         let first = (onset / self.dt).round() as i64;
         let end = ((onset + duration) / self.dt).round() as i64;
-        (first, end.max(first + 1))
+        // `as i64` saturates on huge times; saturating sums keep the bins ordered there too
+        // (the readers refuse such times, but this function must not overflow on its own).
+        (first, end.max(first.saturating_add(1)))
     }
 
     fn sample_bin(&self, scan: usize) -> i64 {
@@ -69,10 +71,13 @@ pub fn event_regressor(
         }
         // Scans whose sample bin m satisfies first ≤ m < end − 1 + reach.
         let mt = grid.microtime as i64;
-        let from = (first - grid.first_sample).div_euclid(mt).max(0);
+        let from = first
+            .saturating_sub(grid.first_sample)
+            .div_euclid(mt)
+            .max(0);
         for (scan, value) in column.iter_mut().enumerate().skip(from as usize) {
             let m = grid.sample_bin(scan);
-            if m >= end - 1 + reach {
+            if m >= end.saturating_sub(1).saturating_add(reach) {
                 break;
             }
             if m < first {
@@ -89,6 +94,17 @@ mod tests {
     use super::super::hrf::{canonical, sampled};
     use super::*;
     use approx::assert_relative_eq;
+
+    #[test]
+    fn absurd_times_neither_overflow_nor_leave_the_run() {
+        let grid = Grid::new(1.0, 40, 16, 0.0);
+        let (kernel, _) = sampled(grid.dt);
+        let times = [1e300, -1e300, f64::MAX, 5.0];
+        let durations = [1e300, 1e300, 0.0, f64::MAX];
+        let column = event_regressor(&grid, &kernel, &times, &durations, &[1.0; 4]);
+        assert_eq!(column.len(), 40);
+        assert!(column.iter().all(|v| v.is_finite()));
+    }
 
     #[test]
     fn a_stick_reproduces_the_sampled_response() {
