@@ -1,0 +1,51 @@
+#!/usr/bin/env bash
+# Times `tangle check --format json` on the simulated cohorts of bench/make-cohorts.sh
+# (median of several runs; peak memory of one run via /usr/bin/time), the time to read the
+# trial table alone (a check of one participant: the input-bound limit), and the Python
+# baseline (bench/baseline.py) on the 200-participant cohort in the same session, with the
+# ratio and the largest relative VIF difference. Not a test.
+# Usage: bench/check.sh [repeats] [sizes...]   (default 3; 100 200 1000 2000 5000)
+set -euo pipefail
+cd "$(dirname "$0")/.."
+repeats="${1:-3}"
+shift || true
+sizes=("$@")
+[ ${#sizes[@]} -eq 0 ] && sizes=(100 200 1000 2000 5000)
+bench/make-cohorts.sh "${sizes[@]}" 200 >/dev/null
+binary=target/release/tangle
+median() { sort -g | awk '{a[NR]=$1} END {print (NR%2) ? a[(NR+1)/2] : (a[NR/2]+a[NR/2+1])/2}'; }
+seconds() { local s e; s=$(date +%s.%N); "$@" >/dev/null; e=$(date +%s.%N); echo "$e - $s" | bc -l; }
+echo "| participants | runs | trial table | check: median of $repeats (runs) | read table only | peak memory |"
+echo "|---|---|---|---|---|---|"
+for n in "${sizes[@]}"; do
+    study=target/bench/cohort-$n/1-as-planned/study.toml
+    trials=target/bench/cohort-$n/1-as-planned/trials.csv
+    first=$(sed -n 2p "$trials" | cut -d, -f1)
+    times=(); for _ in $(seq "$repeats"); do times+=("$(seconds "$binary" check "$study" --format json)"); done
+    read_only=(); for _ in $(seq "$repeats"); do read_only+=("$(seconds "$binary" check "$study" --format json --subjects "$first")"); done
+    peak=$(/usr/bin/time -f '%M' "$binary" check "$study" --format json 2>&1 >/dev/null | tail -1)
+    runs=$(( $(cut -d, -f1,2 "$trials" | sort -u | wc -l) - 1 ))
+    printf '| %s | %s | %s MB | %.2f s (%s) | %.2f s | %s MB |\n' "$n" "$runs" \
+        "$(( $(stat -c %s "$trials") / 1000000 ))" "$(printf '%s\n' "${times[@]}" | median)" \
+        "$(printf '%.2f ' "${times[@]}" | sed 's/ $//')" "$(printf '%s\n' "${read_only[@]}" | median)" "$((peak / 1024))"
+done
+study=target/bench/cohort-200/1-as-planned/study.toml
+"$binary" check "$study" --format json --out target/bench/tangle-200.json
+tangle_time=$(seconds "$binary" check "$study" --format json)
+python_time=$(seconds python3 bench/baseline.py "$study" --vif-out target/bench/baseline-200.json)
+python3 - "$tangle_time" "$python_time" <<'PY'
+import json, sys
+t, p = float(sys.argv[1]), float(sys.argv[2])
+ours = json.load(open("target/bench/tangle-200.json"))["runs"]
+theirs = json.load(open("target/bench/baseline-200.json"))
+worst = 0.0
+for a, b in zip(ours, theirs):
+    assert (a["subject"], a["run"]) == (b["subject"], b["run"])
+    names = [r["name"] for r in a["regressors"]]
+    assert names == b["regressors"], (names, b["regressors"])
+    for x, y in zip(a["vif"], b["vif"]):
+        worst = max(worst, abs(x - y) / abs(y))
+print(f"200 participants, {len(ours)} runs: tangle {t:.2f} s, Python baseline {p:.1f} s, "
+      f"ratio {p / t:.0f}x; largest relative VIF difference {worst:.2e}")
+PY
+echo "$(nproc) cores; $(uname -sr)"
