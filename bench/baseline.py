@@ -10,6 +10,7 @@ import itertools
 import json
 import math
 import tomllib
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -32,6 +33,7 @@ def main():
     parser.add_argument("study")
     parser.add_argument("--vif-out")
     args = parser.parse_args()
+    warnings.filterwarnings("ignore")   # statsmodels warns on every badly conditioned run
     path = Path(args.study)
     study = tomllib.loads(path.read_text(encoding="utf-8"))
     acq = study["acquisition"]
