@@ -1,5 +1,6 @@
 //! Figure 1: each regressor of interest's VIF across participants.
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
@@ -261,37 +262,7 @@ pub fn vif_strip(strip: &VifStrip, thresholds: &Thresholds) -> Result<String, St
             }
         }
 
-        // The caution label ends left of its line and the severe label starts right of
-        // its line, so the two never collide however close the thresholds are.
-        for (value, colour, dashed, label, side, shift) in [
-            (
-                thresholds.vif_caution,
-                EMBER,
-                true,
-                "caution",
-                HPos::Right,
-                -4,
-            ),
-            (thresholds.vif_severe, INK, false, "severe", HPos::Left, 4),
-        ] {
-            let line = [(value, 0.0), (value, plot_height)];
-            if dashed {
-                let series = DashedLineSeries::new(line, 5, 4, colour.stroke_width(2));
-                chart.draw_series(series).map_err(failed)?;
-            } else {
-                chart
-                    .draw_series(LineSeries::new(line, colour.stroke_width(2)))
-                    .map_err(failed)?;
-            }
-            let (x, y) = chart.backend_coord(&(value, plot_height));
-            let note = format!("{label} {}", vif_tick(value));
-            root.draw_text(
-                &note,
-                &anchored(text(13.0), side, VPos::Bottom),
-                (x + shift, y - 4),
-            )
-            .map_err(failed)?;
-        }
+        threshold_lines(root, &mut chart, thresholds, plot_height)?;
 
         let label_style = anchored(text(12.0), HPos::Left, VPos::Center);
         for (row, layout) in strip.rows.iter().zip(&layouts) {
@@ -338,4 +309,46 @@ mod tests {
         assert_eq!(vif_tick(1000.0), "1000");
         assert_eq!(vif_tick(f64::NAN), "");
     }
+}
+
+/// A chart with a log-scaled VIF axis across and rows stacked down.
+pub(super) type VifChart<'a, 'b> =
+    ChartContext<'a, SVGBackend<'b>, Cartesian2d<LogCoord<f64>, RangedCoordf64>>;
+
+/// The caution (dashed, ember) and severe (solid, ink) threshold lines, each labelled
+/// with its value. The caution label ends left of its line and the severe label starts
+/// right of its line, so the two never collide however close the thresholds are.
+pub(super) fn threshold_lines(
+    root: &super::Area,
+    chart: &mut VifChart<'_, '_>,
+    thresholds: &Thresholds,
+    plot_height: f64,
+) -> super::Drawn {
+    for (value, colour, dashed, label, side, shift) in [
+        (
+            thresholds.vif_caution,
+            EMBER,
+            true,
+            "caution",
+            HPos::Right,
+            -4,
+        ),
+        (thresholds.vif_severe, INK, false, "severe", HPos::Left, 4),
+    ] {
+        let line = [(value, 0.0), (value, plot_height)];
+        if dashed {
+            let series = DashedLineSeries::new(line, 5, 4, colour.stroke_width(2));
+            chart.draw_series(series).map_err(failed)?;
+        } else {
+            chart
+                .draw_series(LineSeries::new(line, colour.stroke_width(2)))
+                .map_err(failed)?;
+        }
+        let (x, y) = chart.backend_coord(&(value, plot_height));
+        let note = format!("{label} {}", vif_tick(value));
+        let style = anchored(text(13.0), side, VPos::Bottom);
+        root.draw_text(&note, &style, (x + shift, y - 4))
+            .map_err(failed)?;
+    }
+    Ok(())
 }

@@ -18,7 +18,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
 use super::palette::{EMBER, INK, STONE};
-use super::strip::vif_tick;
+use super::strip::{threshold_lines, vif_tick};
 use super::{Area, Drawn, anchored, draw_svg, failed, label_width, text};
 use crate::forecast::report::ForecastReport;
 use crate::forecast::summary::Spread;
@@ -210,32 +210,7 @@ pub fn variant_vifs(data: &VariantVifs, thresholds: &Thresholds) -> Result<Strin
                 draw_whisker(root, &px, w, y, j, x_range.end)?;
             }
         }
-        for (value, colour, dashed, label, side, shift) in [
-            (
-                thresholds.vif_caution,
-                EMBER,
-                true,
-                "caution",
-                HPos::Right,
-                -4,
-            ),
-            (thresholds.vif_severe, INK, false, "severe", HPos::Left, 4),
-        ] {
-            let line = [(value, 0.0), (value, plot_height)];
-            if dashed {
-                let series = DashedLineSeries::new(line, 5, 4, colour.stroke_width(2));
-                chart.draw_series(series).map_err(failed)?;
-            } else {
-                chart
-                    .draw_series(LineSeries::new(line, colour.stroke_width(2)))
-                    .map_err(failed)?;
-            }
-            let (x, y) = chart.backend_coord(&(value, plot_height));
-            let note = format!("{label} {}", vif_tick(value));
-            let style = anchored(text(13.0), side, VPos::Bottom);
-            root.draw_text(&note, &style, (x + shift, y - 4))
-                .map_err(failed)?;
-        }
+        threshold_lines(root, &mut chart, thresholds, plot_height)?;
         draw_legend(&legend_area, &entries, width as i32)
     })
 }
