@@ -298,19 +298,6 @@ pub fn vif_strip(strip: &VifStrip, thresholds: &Thresholds) -> Result<String, St
     })
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn ticks_are_plain_numbers() {
-        assert_eq!(vif_tick(5.0), "5");
-        assert_eq!(vif_tick(2.5), "2.5");
-        assert_eq!(vif_tick(1000.0), "1000");
-        assert_eq!(vif_tick(f64::NAN), "");
-    }
-}
-
 /// A chart with a log-scaled VIF axis across and rows stacked down.
 pub(super) type VifChart<'a, 'b> =
     ChartContext<'a, SVGBackend<'b>, Cartesian2d<LogCoord<f64>, RangedCoordf64>>;
@@ -351,4 +338,17 @@ pub(super) fn threshold_lines(
             .map_err(failed)?;
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ticks_are_plain_numbers() {
+        assert_eq!(vif_tick(5.0), "5");
+        assert_eq!(vif_tick(2.5), "2.5");
+        assert_eq!(vif_tick(1000.0), "1000");
+        assert_eq!(vif_tick(f64::NAN), "");
+    }
 }
