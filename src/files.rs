@@ -95,10 +95,17 @@ pub fn read_text(files: &dyn InputFiles, path: &Path) -> crate::Result<String> {
         Problem::new(Location::file(path), format!("cannot read the file: {err}"))
             .with_hint("check the path; relative paths are taken from the study file's folder")
     })?;
-    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-    String::from_utf8(bytes.to_vec()).map_err(|err| {
+    let mut bytes = bytes;
+    if bytes.starts_with(b"\xEF\xBB\xBF") {
+        bytes.drain(..3);
+    }
+    String::from_utf8(bytes).map_err(|err| {
         let offset = err.utf8_error().valid_up_to();
-        let line = bytes[..offset].iter().filter(|&&b| b == b'\n').count() + 1;
+        let line = err.as_bytes()[..offset]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count()
+            + 1;
         Problem::new(
             Location::line(path, line),
             "the file is not UTF-8 text (or is a binary file)",

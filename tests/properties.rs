@@ -350,7 +350,7 @@ mod robustness {
             let text: String = cells.iter().map(|row| row.join(delimiter) + "\n").collect();
             let path = if tabs { "t.tsv" } else { "t.csv" };
             if let Ok(table) = Table::parse(Path::new(path), &text) {
-                for row in &table.rows {
+                for row in table.rows() {
                     for column in 0..table.headers.len() {
                         if let Ok(Some(value)) = table.number(row, column) {
                             prop_assert!(value.is_finite());

@@ -47,9 +47,8 @@ fn longley() -> (Vec<String>, Vec<Vec<f64>>) {
     let columns = (0..table.headers.len())
         .map(|j| {
             table
-                .rows
-                .iter()
-                .map(|row| row.cells[j].parse().unwrap())
+                .rows()
+                .map(|row| row.cell(j).parse().unwrap())
                 .collect()
         })
         .collect();

@@ -11,7 +11,7 @@ fuzz_target!(|bytes: &[u8]| {
     let text = String::from_utf8_lossy(bytes);
     for name in ["t.csv", "t.tsv"] {
         if let Ok(table) = Table::parse(Path::new(name), &text) {
-            for row in &table.rows {
+            for row in table.rows() {
                 for column in 0..table.headers.len() {
                     if let Ok(Some(value)) = table.number(row, column) {
                         assert!(value.is_finite());

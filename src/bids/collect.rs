@@ -83,13 +83,12 @@ fn events_table(files: &dyn InputFiles, source: &BidsSource, run: &RunFiles) -> 
         let outputs = Table::read(files, &path)?;
         table = join(table, &outputs, &source.join)?;
     }
-    table.headers.push(SUBJECT_COLUMN.into());
-    table.headers.push(RUN_COLUMN.into());
-    for row in &mut table.rows {
-        row.cells.push(run.subject.clone());
-        row.cells.push(run.run.clone());
-    }
-    Ok(table)
+    let labels = [&run.subject, &run.run];
+    Ok(
+        table.with_columns(vec![SUBJECT_COLUMN.into(), RUN_COLUMN.into()], |_, k| {
+            labels[k].clone()
+        }),
+    )
 }
 
 /// TR and volumes of one run, with flags where the study file overrides the data.

@@ -65,7 +65,6 @@ pub fn find_derivative(
 
 /// The events table with the derivative table's columns added to each row.
 pub fn join(events: Table, outputs: &Table, by: &JoinBy) -> Result<Table> {
-    let mut events = events;
     let (key_in_events, key_in_outputs) = match by {
         JoinBy::RowOrder => (None, None),
         JoinBy::Column(name) => {
@@ -96,48 +95,43 @@ pub fn join(events: Table, outputs: &Table, by: &JoinBy) -> Result<Table> {
     let rows_for: Vec<Option<usize>> = match (key_in_events, key_in_outputs) {
         (Some(ke), Some(ko)) => {
             let mut index: HashMap<&str, usize> = HashMap::new();
-            for (i, row) in outputs.rows.iter().enumerate() {
-                if index.insert(row.cells[ko].as_str(), i).is_some() {
+            for (i, row) in outputs.rows().enumerate() {
+                if index.insert(row.cell(ko), i).is_some() {
                     return Err(Problem::new(
-                        Location::line(&outputs.path, row.line),
-                        format!("key \"{}\" appears twice", row.cells[ko]),
+                        Location::line(&outputs.path, row.line()),
+                        format!("key \"{}\" appears twice", row.cell(ko)),
                     )
                     .with_hint("each row of a model-output table needs its own key")
                     .into());
                 }
             }
             events
-                .rows
-                .iter()
-                .map(|row| index.get(row.cells[ke].as_str()).copied())
+                .rows()
+                .map(|row| index.get(row.cell(ke)).copied())
                 .collect()
         }
         _ => {
-            if events.rows.len() != outputs.rows.len() {
+            if events.row_count() != outputs.row_count() {
                 return Err(Problem::new(
                     Location::file(&outputs.path),
                     format!(
                         "{} rows, but the events file {} has {}",
-                        outputs.rows.len(),
+                        outputs.row_count(),
                         events.path.display(),
-                        events.rows.len()
+                        events.row_count()
                     ),
                 )
                 .with_hint("joined by row order, both tables need one row per event; or set [bids] join_column")
                 .into());
             }
-            (0..events.rows.len()).map(Some).collect()
+            (0..events.row_count()).map(Some).collect()
         }
     };
-    events
-        .headers
-        .extend(added.iter().map(|&c| outputs.headers[c].clone()));
-    for (row, source) in events.rows.iter_mut().zip(rows_for) {
-        for &c in &added {
-            let cell =
-                source.map_or_else(|| "n/a".to_string(), |i| outputs.rows[i].cells[c].clone());
-            row.cells.push(cell);
-        }
-    }
-    Ok(events)
+    let names = added.iter().map(|&c| outputs.headers[c].clone()).collect();
+    Ok(events.with_columns(names, |row, k| {
+        rows_for[row.index()].map_or_else(
+            || "n/a".to_string(),
+            |i| outputs.row(i).cell(added[k]).to_string(),
+        )
+    }))
 }

@@ -45,20 +45,20 @@ fn read_schedule(
     let Some(columns) = columns else {
         return Err(problems.finish(()).unwrap_err());
     };
-    if table.rows.len() != trials {
+    if table.row_count() != trials {
         problems.push(
             Problem::new(
                 crate::error::Location::file(path),
                 format!(
                     "the schedule has {} rows but the task has {trials} trials per run",
-                    table.rows.len()
+                    table.row_count()
                 ),
             )
             .with_hint("give one row per trial of a run (the same schedule is used in every run)"),
         );
     }
-    let mut rows = Vec::with_capacity(table.rows.len());
-    for row in &table.rows {
+    let mut rows = Vec::with_capacity(table.row_count());
+    for row in table.rows() {
         let mut probabilities = Vec::with_capacity(options);
         for &column in &columns {
             match table.number(row, column) {

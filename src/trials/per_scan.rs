@@ -63,12 +63,12 @@ pub fn read_per_scan(
     if !problems.is_empty() {
         return Err(Error::Input(problems));
     }
-    if table.rows.len() != scans {
+    if table.row_count() != scans {
         return Err(Problem::new(
             Location::file(path),
             format!(
                 "the {what} table has {} rows but subject {subject} run {run} has {scans} scans",
-                table.rows.len()
+                table.row_count()
             ),
         )
         .with_hint(format!(
@@ -77,7 +77,7 @@ pub fn read_per_scan(
         .into());
     }
     let mut columns = vec![Vec::with_capacity(scans); names.len()];
-    for row in &table.rows {
+    for row in table.rows() {
         for (values, &index) in columns.iter_mut().zip(&indices) {
             match table.number(row, index) {
                 Ok(Some(value)) => values.push(value),

@@ -1,9 +1,11 @@
 //! Groups the rows of a trial table into runs and pulls out, for every event, its
 //! onsets, durations and the modulator values the study's models attach to it.
 
-use std::collections::HashMap;
+use std::collections::hash_map::Entry;
 
-use super::{ScanTable, Table, check_label};
+use foldhash::{HashMap, HashMapExt};
+
+use super::{Row, ScanTable, Table, check_label};
 use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::study::{Duration, Study};
 
@@ -106,60 +108,64 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
     }
 
     let mut runs: Vec<RunTrials> = Vec::new();
-    let mut index_of: HashMap<(String, String), usize> = HashMap::new();
+    // Run of each (subject, run) pair; `None` for a pair whose labels or scans were refused.
+    let mut index_of: HashMap<(&str, &str), Option<usize>> = HashMap::new();
     // The first line of every row that holds an onset, to catch rows pasted twice.
-    let mut first_line: HashMap<&[String], usize> = HashMap::new();
-    for row in &table.rows {
+    // Sized for every row at once: growing it would hash every row again.
+    let mut first_line: HashMap<Row<'_>, usize> = HashMap::with_capacity(table.row_count());
+    let mut previous: Option<((&str, &str), Option<usize>)> = None;
+    for row in table.rows() {
         let has_onset = events
             .iter()
-            .any(|columns| !super::is_missing(&row.cells[columns.onset]));
+            .any(|columns| !super::is_missing(row.cell(columns.onset)));
         if has_onset {
-            if let Some(&earlier) = first_line.get(row.cells.as_slice()) {
-                problems.push(
-                    Problem::new(
-                        Location::line(&table.path, row.line),
-                        format!("this row repeats line {earlier} exactly"),
-                    )
-                    .with_hint("a row pasted twice holds the same trial twice: remove one of them"),
-                );
-                continue;
-            }
-            first_line.insert(row.cells.as_slice(), row.line);
-        }
-        let subject = &row.cells[subject_column];
-        let run = &row.cells[run_column];
-        let key = (subject.clone(), run.clone());
-        let run_index = match index_of.get(&key) {
-            Some(&index) => index,
-            None => {
-                let labels_ok = [
-                    check_label(subject, "subject", table.cell_location(row, subject_column)),
-                    check_label(run, "run", table.cell_location(row, run_column)),
-                ]
-                .into_iter()
-                .fold(true, |ok, result| match result {
-                    Ok(()) => ok,
-                    Err(problem) => {
-                        problems.push(problem);
-                        false
-                    }
-                });
-                if !labels_ok {
+            match first_line.entry(row) {
+                Entry::Occupied(earlier) => {
+                    problems.push(
+                        Problem::new(
+                            Location::line(&table.path, row.line()),
+                            format!("this row repeats line {} exactly", earlier.get()),
+                        )
+                        .with_hint(
+                            "a row pasted twice holds the same trial twice: remove one of them",
+                        ),
+                    );
                     continue;
                 }
-                let Some(count) = problems.keep(scans.scans(subject, run).map_err(Error::input))
-                else {
-                    index_of.insert(key, usize::MAX);
-                    continue;
-                };
-                runs.push(new_run(study, subject, run, count, &events));
-                index_of.insert(key, runs.len() - 1);
-                runs.len() - 1
+                Entry::Vacant(entry) => {
+                    entry.insert(row.line());
+                }
+            }
+        }
+        let key = (row.cell(subject_column), row.cell(run_column));
+        // Rows of one run usually follow each other: most rows need no lookup.
+        let run_index = match previous {
+            Some((last, index)) if last == key => index,
+            _ => {
+                let index = *index_of.entry(key).or_insert_with(|| {
+                    new_run_for(
+                        study,
+                        table,
+                        row,
+                        key,
+                        subject_column,
+                        run_column,
+                        scans,
+                        &events,
+                        &mut problems,
+                    )
+                    .map(|run| {
+                        runs.push(run);
+                        runs.len() - 1
+                    })
+                });
+                previous = Some((key, index));
+                index
             }
         };
-        if run_index == usize::MAX {
+        let Some(run_index) = run_index else {
             continue;
-        }
+        };
         for (spec, (columns, trials)) in study
             .events
             .iter()
@@ -255,6 +261,39 @@ fn check_times(table: &Table, tr: f64, run: &RunTrials, problems: &mut Problems)
     }
 }
 
+/// The run of a (subject, run) pair met for the first time, once its labels and its
+/// number of scans are known to be good.
+#[allow(clippy::too_many_arguments)]
+fn new_run_for(
+    study: &Study,
+    table: &Table,
+    row: Row<'_>,
+    (subject, run): (&str, &str),
+    subject_column: usize,
+    run_column: usize,
+    scans: &ScanTable,
+    events: &[EventColumns],
+    problems: &mut Problems,
+) -> Option<RunTrials> {
+    let labels_ok = [
+        check_label(subject, "subject", table.cell_location(row, subject_column)),
+        check_label(run, "run", table.cell_location(row, run_column)),
+    ]
+    .into_iter()
+    .fold(true, |ok, result| match result {
+        Ok(()) => ok,
+        Err(problem) => {
+            problems.push(problem);
+            false
+        }
+    });
+    if !labels_ok {
+        return None;
+    }
+    let count = problems.keep(scans.scans(subject, run).map_err(Error::input))?;
+    Some(new_run(study, subject, run, count, events))
+}
+
 fn new_run(
     study: &Study,
     subject: &str,
@@ -295,13 +334,13 @@ fn new_run(
 
 fn add_trial(
     table: &Table,
-    row: &super::Row,
+    row: Row<'_>,
     spec: &crate::study::EventSpec,
     columns: &EventColumns,
     trials: &mut EventTrials,
 ) -> Result<(), Problem> {
     if let Some((column, value)) = &columns.selector {
-        if &row.cells[*column] != value {
+        if row.cell(*column) != value {
             return Ok(());
         }
     }
@@ -334,6 +373,6 @@ fn add_trial(
     }
     trials.onsets.push(onset);
     trials.durations.push(duration);
-    trials.lines.push(row.line);
+    trials.lines.push(row.line());
     Ok(())
 }

@@ -39,8 +39,8 @@ impl ScanTable {
         };
         let mut problems = Problems::default();
         let mut counts = BTreeMap::new();
-        for row in &table.rows {
-            let key = (row.cells[subject].clone(), row.cells[run].clone());
+        for row in table.rows() {
+            let key = (row.cell(subject).to_string(), row.cell(run).to_string());
             let count = match table.number(row, scans) {
                 Ok(Some(n)) if n >= 1.0 && n.fract() == 0.0 && n <= MAX_SCANS as f64 => n as usize,
                 Ok(value) => {
@@ -64,7 +64,7 @@ impl ScanTable {
             if counts.insert(key.clone(), count).is_some() {
                 problems.push(
                     Problem::new(
-                        Location::line(path, row.line),
+                        Location::line(path, row.line()),
                         format!("subject {} run {} is listed twice", key.0, key.1),
                     )
                     .with_hint("keep one row per run"),

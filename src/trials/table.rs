@@ -7,18 +7,97 @@ use std::path::{Path, PathBuf};
 use crate::error::{Error, Location, Problem, Result};
 use crate::files::{InputFiles, read_text};
 
+/// A table held compactly: the trimmed text of every cell in one buffer, with the end
+/// of each cell, so that a cohort's trial table of millions of cells costs about its
+/// own size in memory, not one allocation per cell.
 #[derive(Debug, Clone)]
 pub struct Table {
     pub path: PathBuf,
     pub headers: Vec<String>,
-    pub rows: Vec<Row>,
+    /// Every cell's trimmed text, row after row.
+    text: String,
+    /// Where each cell ends in `text`, `headers.len()` per row.
+    ends: Vec<u32>,
+    /// 1-based line of each row in the file.
+    lines: Vec<u32>,
 }
 
-#[derive(Debug, Clone)]
-pub struct Row {
+/// One row of a [`Table`].
+#[derive(Debug, Clone, Copy)]
+pub struct Row<'a> {
+    table: &'a Table,
+    index: usize,
+}
+
+impl<'a> Row<'a> {
+    /// Position among the table's rows, from 0.
+    pub fn index(&self) -> usize {
+        self.index
+    }
+
     /// 1-based line of the row in the file.
-    pub line: usize,
-    pub cells: Vec<String>,
+    pub fn line(&self) -> usize {
+        self.table.lines[self.index] as usize
+    }
+
+    /// The trimmed text of one cell.
+    pub fn cell(&self, column: usize) -> &'a str {
+        let width = self.table.headers.len();
+        let at = self.index * width + column;
+        let start = if at == 0 {
+            0
+        } else {
+            self.table.ends[at - 1] as usize
+        };
+        &self.table.text[start..self.table.ends[at] as usize]
+    }
+
+    pub fn cells(&self) -> impl Iterator<Item = &'a str> + use<'a> {
+        let row = *self;
+        (0..self.table.headers.len()).map(move |column| row.cell(column))
+    }
+}
+
+impl Row<'_> {
+    /// The row's cells side by side, and where each ends in that text.
+    fn span(&self) -> (&str, &[u32]) {
+        let width = self.table.headers.len();
+        let first = self.index * width;
+        let start = if first == 0 {
+            0
+        } else {
+            self.table.ends[first - 1]
+        };
+        let ends = &self.table.ends[first..first + width];
+        (
+            &self.table.text[start as usize..ends[width - 1] as usize],
+            ends,
+        )
+    }
+}
+
+/// Rows are equal when their cells are (wherever they are in the file).
+impl PartialEq for Row<'_> {
+    fn eq(&self, other: &Self) -> bool {
+        let (text, ends) = self.span();
+        let (other_text, other_ends) = other.span();
+        // Same text, cut at the same places.
+        text == other_text
+            && ends
+                .iter()
+                .zip(other_ends)
+                .all(|(a, b)| a - ends[0] == b - other_ends[0])
+    }
+}
+
+impl Eq for Row<'_> {}
+
+/// Hashes the cells' text side by side: equal rows hash alike, and rows that differ
+/// only in where cells are cut are told apart by `eq`.
+impl std::hash::Hash for Row<'_> {
+    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
+        self.span().0.hash(state);
+    }
 }
 
 /// A cell that holds no value.
@@ -26,6 +105,9 @@ pub fn is_missing(cell: &str) -> bool {
     let cell = cell.trim();
     cell.is_empty() || cell.eq_ignore_ascii_case("n/a")
 }
+
+/// The cell buffer's offsets are 32-bit: a larger table is refused with a message.
+const MAX_TABLE_BYTES: usize = u32::MAX as usize;
 
 impl Table {
     pub fn read(files: &dyn InputFiles, path: &Path) -> Result<Table> {
@@ -42,6 +124,14 @@ impl Table {
                 "the file holds NUL bytes: it is a binary file, not a text table",
             )
             .with_hint("export the table as UTF-8 CSV or TSV text")
+            .into());
+        }
+        if text.len() > MAX_TABLE_BYTES {
+            return Err(Problem::new(
+                Location::file(path),
+                format!("the table is larger than {} GiB", MAX_TABLE_BYTES >> 30),
+            )
+            .with_hint("split the table, e.g. one file per group of participants, and check each with its own study file")
             .into());
         }
         let lines = LineIndex::new(text);
@@ -62,30 +152,35 @@ impl Table {
                 .into());
         }
         check_headers(path, &headers, delimiter)?;
-        let mut rows = Vec::new();
+        let mut table = Table {
+            path: path.to_path_buf(),
+            // The cells are at most the text; rows at most its lines.
+            text: String::with_capacity(text.len()),
+            ends: Vec::with_capacity(lines.count() * headers.len()),
+            lines: Vec::with_capacity(lines.count()),
+            headers,
+        };
         let mut problems = Vec::new();
-        for record in reader.records() {
-            match record {
-                Ok(record) => {
+        let mut record = csv::ByteRecord::new();
+        loop {
+            match reader.read_byte_record(&mut record) {
+                Ok(false) => break,
+                Ok(true) => {
                     let line = record.position().map_or(0, |p| lines.line_of(p.byte()));
-                    if record.iter().all(|cell| cell.trim().is_empty()) {
-                        continue; // a blank line, e.g. at the end of the file
-                    }
-                    let cells = record.iter().map(|c| c.trim().to_string()).collect();
-                    rows.push(Row { line, cells });
-                }
-                Err(err) => {
-                    problems.push(csv_problem(path, &lines, &err));
-                    if problems.len() >= crate::error::MAX_LISTED_PROBLEMS {
-                        break;
+                    if let Err(problem) = table.push_record(&record, line) {
+                        problems.push(problem);
                     }
                 }
+                Err(err) => problems.push(csv_problem(path, &lines, &err)),
+            }
+            if problems.len() >= crate::error::MAX_LISTED_PROBLEMS {
+                break;
             }
         }
         if !problems.is_empty() {
             return Err(Error::Input(problems));
         }
-        if rows.is_empty() {
+        if table.lines.is_empty() {
             return Err(Problem::new(
                 Location::file(path),
                 "the table has a header but no rows",
@@ -93,11 +188,78 @@ impl Table {
             .with_hint("the file may have been written before its program finished; export it again")
             .into());
         }
-        Ok(Table {
-            path: path.to_path_buf(),
-            headers,
-            rows,
-        })
+        table.text.shrink_to_fit();
+        table.ends.shrink_to_fit();
+        table.lines.shrink_to_fit();
+        Ok(table)
+    }
+
+    /// Appends one record's trimmed cells; a blank line (e.g. at the end) is skipped.
+    fn push_record(&mut self, record: &csv::ByteRecord, line: usize) -> Result<(), Problem> {
+        let mut cells = Vec::with_capacity(record.len());
+        for field in record {
+            // The text is UTF-8 and every delimiter is ASCII, so each field is UTF-8 too.
+            let cell = std::str::from_utf8(field).map_err(|_| {
+                Problem::new(Location::line(&self.path, line), "a cell is not UTF-8 text")
+                    .with_hint("save the table as UTF-8 CSV or TSV")
+            })?;
+            cells.push(cell.trim());
+        }
+        if cells.iter().all(|cell| cell.is_empty()) {
+            return Ok(());
+        }
+        for cell in cells {
+            self.text.push_str(cell);
+            self.ends.push(self.text.len() as u32);
+        }
+        self.lines.push(line as u32);
+        Ok(())
+    }
+
+    /// The number of rows (blank lines not counted).
+    pub fn row_count(&self) -> usize {
+        self.lines.len()
+    }
+
+    pub fn row(&self, index: usize) -> Row<'_> {
+        Row { table: self, index }
+    }
+
+    /// The rows in file order.
+    pub fn rows(&self) -> impl ExactSizeIterator<Item = Row<'_>> {
+        (0..self.row_count()).map(|index| Row { table: self, index })
+    }
+
+    /// The table with more columns: `cell(row, k)` is the cell of new column `k` in `row`.
+    pub fn with_columns(
+        self,
+        names: Vec<String>,
+        mut cell: impl FnMut(Row<'_>, usize) -> String,
+    ) -> Table {
+        let width = self.headers.len() + names.len();
+        let mut wider = Table {
+            path: self.path.clone(),
+            headers: self
+                .headers
+                .iter()
+                .cloned()
+                .chain(names.iter().cloned())
+                .collect(),
+            text: String::with_capacity(self.text.len()),
+            ends: Vec::with_capacity(self.row_count() * width),
+            lines: self.lines.clone(),
+        };
+        for row in self.rows() {
+            for existing in row.cells() {
+                wider.text.push_str(existing);
+                wider.ends.push(wider.text.len() as u32);
+            }
+            for k in 0..names.len() {
+                wider.text.push_str(cell(row, k).trim());
+                wider.ends.push(wider.text.len() as u32);
+            }
+        }
+        wider
     }
 
     /// Index of a named column; the error lists the columns that exist.
@@ -117,15 +279,15 @@ impl Table {
     }
 
     /// The number in a cell; `None` when the cell is missing.
-    pub fn number(&self, row: &Row, column: usize) -> Result<Option<f64>, Problem> {
-        let cell = row.cells[column].as_str();
+    pub fn number(&self, row: Row<'_>, column: usize) -> Result<Option<f64>, Problem> {
+        let cell = row.cell(column);
         if is_missing(cell) {
             return Ok(None);
         }
         let location = || {
             Location::cell(
                 &self.path,
-                row.line,
+                row.line(),
                 format!("column {} (\"{}\")", column + 1, self.headers[column]),
             )
         };
@@ -148,10 +310,10 @@ impl Table {
     }
 
     /// The location of a cell, for messages about its value.
-    pub fn cell_location(&self, row: &Row, column: usize) -> Location {
+    pub fn cell_location(&self, row: Row<'_>, column: usize) -> Location {
         Location::cell(
             &self.path,
-            row.line,
+            row.line(),
             format!("column {} (\"{}\")", column + 1, self.headers[column]),
         )
     }
@@ -231,6 +393,11 @@ impl LineIndex {
         LineIndex(text.match_indices('\n').map(|(i, _)| i).collect())
     }
 
+    /// The number of lines (an upper bound on the rows).
+    fn count(&self) -> usize {
+        self.0.len() + 1
+    }
+
     /// 1-based line holding byte `offset`.
     fn line_of(&self, offset: u64) -> usize {
         // With CRLF ends the csv reader puts a record's start on the LF that precedes it.
@@ -268,11 +435,11 @@ mod tests {
         let text = "a\tb\r\n1\tn/a\r\n2\t\r\n\r\n";
         let table = Table::parse(Path::new("x.tsv"), text).unwrap();
         assert_eq!(table.headers, ["a", "b"]);
-        assert_eq!(table.rows.len(), 2);
-        assert_eq!(table.rows[1].line, 3);
-        assert_eq!(table.number(&table.rows[0], 0).unwrap(), Some(1.0));
-        assert_eq!(table.number(&table.rows[0], 1).unwrap(), None);
-        assert_eq!(table.number(&table.rows[1], 1).unwrap(), None);
+        assert_eq!(table.row_count(), 2);
+        assert_eq!(table.row(1).line(), 3);
+        assert_eq!(table.number(table.row(0), 0).unwrap(), Some(1.0));
+        assert_eq!(table.number(table.row(0), 1).unwrap(), None);
+        assert_eq!(table.number(table.row(1), 1).unwrap(), None);
     }
 
     #[test]
@@ -283,13 +450,13 @@ mod tests {
         assert!(text.contains("1 cells but the header has 2"), "{text}");
 
         let table = Table::parse(Path::new("t.csv"), "a,b\n1,abc\n").unwrap();
-        let problem = table.number(&table.rows[0], 1).unwrap_err();
+        let problem = table.number(table.row(0), 1).unwrap_err();
         assert_eq!(
             problem.to_string().lines().next().unwrap(),
             "t.csv, line 2, column 2 (\"b\"): \"abc\" is not a number"
         );
         let table = Table::parse(Path::new("t.csv"), "a\nNaN\n").unwrap();
-        assert!(table.number(&table.rows[0], 0).is_err());
+        assert!(table.number(table.row(0), 0).is_err());
     }
 
     #[test]
