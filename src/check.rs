@@ -296,22 +296,51 @@ impl Prepared {
         files: &dyn InputFiles,
         each: &mut dyn FnMut(RunReport) -> Result<()>,
     ) -> Result<Summaries> {
+        self.run_all_rendered(files, &|report| report, each)
+    }
+
+    /// As [`Prepared::run_all`], but each report is first turned by `render` (e.g. into
+    /// its JSON text) on the worker threads, and the next batch is checked while `each`
+    /// consumes this one, so that a slow consumer (writing the report) and the checks
+    /// overlap.
+    pub fn run_all_rendered<T: Send>(
+        &self,
+        files: &dyn InputFiles,
+        render: &(dyn Fn(RunReport) -> T + Sync),
+        each: &mut dyn FnMut(T) -> Result<()>,
+    ) -> Result<Summaries> {
+        type Batch<T> = Vec<Result<(RunDigest, T)>>;
         let mut problems = Problems::default();
         let mut digests = Vec::with_capacity(self.runs.len());
-        for batch in self.runs.chunks(RUNS_PER_BATCH) {
-            let results: Vec<Result<RunReport>> = batch
-                .par_iter()
-                .map(|run| check_run(files, &self.study, &self.settings, run, &self.options))
-                .collect();
-            for result in results {
-                if let Some(report) = problems.keep(result) {
-                    if problems.is_empty() {
-                        digests.push(RunDigest::of(&report));
-                        each(report)?;
+        let (send, receive) = std::sync::mpsc::sync_channel::<Batch<T>>(1);
+        std::thread::scope(|scope| {
+            scope.spawn(move || {
+                for batch in self.runs.chunks(RUNS_PER_BATCH) {
+                    let results: Batch<T> = batch
+                        .par_iter()
+                        .map(|run| {
+                            let report =
+                                check_run(files, &self.study, &self.settings, run, &self.options)?;
+                            Ok((RunDigest::of(&report), render(report)))
+                        })
+                        .collect();
+                    if send.send(results).is_err() {
+                        return; // the consumer stopped (an output error)
+                    }
+                }
+            });
+            for results in receive {
+                for result in results {
+                    if let Some((digest, rendered)) = problems.keep(result) {
+                        if problems.is_empty() {
+                            digests.push(digest);
+                            each(rendered)?;
+                        }
                     }
                 }
             }
-        }
+            Ok::<(), Error>(())
+        })?;
         let digests = problems.finish(digests)?;
         Ok(summarise(&digests))
     }

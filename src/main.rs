@@ -13,7 +13,7 @@ use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
 use tangle::partition::signal::BootstrapSettings;
-use tangle::report::json::JsonStream;
+use tangle::report::json::{JsonStream, render_run};
 use tangle::report::{self, Report};
 use tangle::screen::Status;
 
@@ -144,12 +144,16 @@ fn check_streaming(study: &Path, output: &OutputArgs) -> tangle::Result<ExitCode
     let mut failure = None;
     let mut write = |out: &mut dyn std::io::Write| -> std::io::Result<()> {
         let mut stream = JsonStream::begin(out, &head)?;
-        let result = prepared.run_all(&DiskFiles, &mut |run| {
-            stream.run(&run).map_err(|err| Error::Output {
-                path: "the report".into(),
-                source: err,
-            })
-        });
+        let output_error = |err| Error::Output {
+            path: "the report".into(),
+            source: err,
+        };
+        let result =
+            prepared.run_all_rendered(&DiskFiles, &|run| render_run(&run), &mut |rendered| {
+                stream
+                    .rendered_run(&rendered.map_err(output_error)?)
+                    .map_err(output_error)
+            });
         match result {
             Ok(done) => {
                 stream.finish(&done)?;

@@ -2,7 +2,7 @@
 
 use std::path::PathBuf;
 
-use super::filter::DriftBasis;
+use super::filter::DriftBases;
 use super::hrf::{Kernel, sampled};
 use super::regressors::{Grid, event_regressor};
 use super::{Design, EventSummary, Regressor, RegressorKind, TrialValues};
@@ -26,6 +26,7 @@ pub struct DesignSettings {
     pub trial_file: PathBuf,
     response: Kernel,
     response_derivative: Kernel,
+    drift: DriftBases,
 }
 
 impl DesignSettings {
@@ -44,6 +45,7 @@ impl DesignSettings {
             trial_file: study.trials.file.clone(),
             response,
             response_derivative,
+            drift: DriftBases::default(),
         }
     }
 }
@@ -213,7 +215,9 @@ pub fn build_design(
         }
     }
 
-    let drift = DriftBasis::new(run.scans, settings.tr, settings.high_pass);
+    let drift = settings
+        .drift
+        .get(run.scans, settings.tr, settings.high_pass);
     let in_model = included.iter().filter(|&&i| i).count() + drift.len();
     if in_model > run.scans {
         return Err(Problem::new(

@@ -4,6 +4,9 @@
 //! by default is common practice). Projecting these out is the same, for the betas of
 //! interest, as keeping them in the model (Frisch–Waugh–Lovell theorem).
 
+use std::collections::HashMap;
+use std::sync::{Arc, Mutex};
+
 /// Orthonormal columns spanning the constant and the slow cosines.
 #[derive(Debug, Clone)]
 pub struct DriftBasis {
@@ -54,6 +57,42 @@ impl DriftBasis {
             }
         }
         residual
+    }
+}
+
+/// The drift bases of a study's runs, made once per scan count: runs of a cohort share
+/// a handful of lengths, and the cosines are a tenth of a run's work.
+#[derive(Debug, Default)]
+pub struct DriftBases {
+    by_scans: Mutex<HashMap<usize, Arc<DriftBasis>>>,
+}
+
+/// Bases kept at most; runs of other lengths get a basis of their own.
+const MAX_KEPT_BASES: usize = 256;
+
+impl DriftBases {
+    /// The basis for `scans` volumes (TR and cutoff are the same for every run of a study).
+    pub fn get(&self, scans: usize, tr: f64, cutoff: f64) -> Arc<DriftBasis> {
+        // A poisoned lock only means another run panicked; the map itself is intact.
+        let mut kept = self
+            .by_scans
+            .lock()
+            .unwrap_or_else(|poisoned| poisoned.into_inner());
+        if let Some(basis) = kept.get(&scans) {
+            return Arc::clone(basis);
+        }
+        let basis = Arc::new(DriftBasis::new(scans, tr, cutoff));
+        if kept.len() < MAX_KEPT_BASES {
+            kept.insert(scans, Arc::clone(&basis));
+        }
+        basis
+    }
+}
+
+/// A copy starts empty: the bases are a memo, not state.
+impl Clone for DriftBases {
+    fn clone(&self) -> Self {
+        DriftBases::default()
     }
 }
 

@@ -43,11 +43,16 @@ impl<W: Write> JsonStream<W> {
     }
 
     pub fn run(&mut self, run: &RunReport) -> std::io::Result<()> {
+        self.rendered_run(&render_run(run)?)
+    }
+
+    /// A run already rendered by [`render_run`] (e.g. on another thread).
+    pub fn rendered_run(&mut self, rendered: &[u8]) -> std::io::Result<()> {
         if self.runs > 0 {
             self.out.write_all(b",")?;
         }
         self.out.write_all(b"\n    ")?;
-        write_indented(&mut self.out, run, b"\n    ")?;
+        self.out.write_all(rendered)?;
         self.runs += 1;
         Ok(())
     }
@@ -74,6 +79,13 @@ impl<W: Write> JsonStream<W> {
         write!(self.out, "\n  \"{key}\": ")?;
         write_indented(&mut self.out, value, b"\n  ")
     }
+}
+
+/// One run's JSON as it sits in the report's list of runs.
+pub fn render_run(run: &RunReport) -> std::io::Result<Vec<u8>> {
+    let mut rendered = Vec::new();
+    write_indented(&mut rendered, run, b"\n    ")?;
+    Ok(rendered)
 }
 
 /// `value` as pretty JSON, every line after the first indented to its depth. JSON
