@@ -17,6 +17,12 @@ use tangle::report::json::{JsonStream, render_run};
 use tangle::report::{self, Report};
 use tangle::screen::Status;
 
+/// A whole-cohort check makes millions of small allocations across threads (a run's
+/// report is built, rendered and dropped on a worker); mimalloc takes about a fifth off
+/// the wall time of the 1,000-participant benchmark (BENCHMARKS.md).
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     // A panic is a bug in tangle, never the user's fault: report it as an internal error (2).
