@@ -23,7 +23,7 @@ use crate::screen::{
 };
 use crate::study::{NuisanceSpec, Study, parse_study};
 use crate::trials::{
-    NuisanceTable, PerScanTable, RunTrials, ScanTable, Table, collect_runs, fill_template,
+    NuisanceTable, PerScanTable, RunCollector, RunTrials, ScanTable, Table, fill_template,
     read_nuisance, read_per_scan,
 };
 
@@ -242,8 +242,7 @@ pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> 
         Some(source) => crate::bids::collect_bids_runs(files, study, source)?,
         None => {
             let scans = ScanTable::load(files, &study.acquisition.scans)?;
-            let table = Table::read(files, &study.trials.file)?;
-            (study.clone(), collect_runs(study, &table, &scans)?)
+            (study.clone(), read_trials(files, study, &scans)?)
         }
     };
     let runs = match &options.subjects {
@@ -270,6 +269,29 @@ pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> 
         settings,
         options,
     })
+}
+
+/// Rows of the trial table held at once while it is read.
+const ROWS_PER_CHUNK: usize = 16 * 1024;
+
+/// The runs of a flat trial table, read a chunk at a time: only the numbers the study
+/// uses are kept, never the whole text.
+fn read_trials(files: &dyn InputFiles, study: &Study, scans: &ScanTable) -> Result<Vec<RunTrials>> {
+    let mut collector = None;
+    Table::read_in_chunks(files, &study.trials.file, ROWS_PER_CHUNK, &mut |chunk| {
+        let collector = match &mut collector {
+            Some(collector) => collector,
+            None => collector.insert(RunCollector::new(study, &chunk, scans)?),
+        };
+        collector.add(&chunk);
+        Ok(())
+    })?;
+    match collector {
+        Some(collector) => collector.finish(),
+        None => Err(Error::Internal(
+            "the trial table was read but gave no rows".into(),
+        )),
+    }
 }
 
 /// Runs checked at once: enough to keep every core busy, few enough that memory stays

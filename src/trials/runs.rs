@@ -1,8 +1,6 @@
 //! Groups the rows of a trial table into runs and pulls out, for every event, its
 //! onsets, durations and the modulator values the study's models attach to it.
 
-use std::collections::hash_map::Entry;
-
 use foldhash::{HashMap, HashMapExt};
 
 use super::{Row, ScanTable, Table, check_label};
@@ -20,6 +18,34 @@ pub struct RunTrials {
     pub events: Vec<EventTrials>,
     /// Findings made while reading the run (e.g. a TR that disagrees with the data's).
     pub flags: Vec<crate::flags::Flag>,
+}
+
+impl RunTrials {
+    /// Room for as many trials as `other` has: the runs of a study mostly have the same
+    /// number, and growing vectors by doubling would hold up to twice the room.
+    fn reserve_like(&mut self, other: &RunTrials) {
+        for (event, like) in self.events.iter_mut().zip(&other.events) {
+            let trials = like.onsets.len();
+            event.onsets.reserve_exact(trials);
+            event.durations.reserve_exact(trials);
+            event.lines.reserve_exact(trials);
+            for modulator in &mut event.modulators {
+                modulator.values.reserve_exact(trials);
+            }
+        }
+    }
+
+    /// Gives back the room the vectors grew into while the table was read.
+    fn shrink_to_fit(&mut self) {
+        for event in &mut self.events {
+            event.onsets.shrink_to_fit();
+            event.durations.shrink_to_fit();
+            event.lines.shrink_to_fit();
+            for modulator in &mut event.modulators {
+                modulator.values.shrink_to_fit();
+            }
+        }
+    }
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -52,134 +78,207 @@ struct EventColumns {
 }
 
 pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<Vec<RunTrials>> {
-    let mut problems = Problems::default();
-    let mut column = |name: &str, wanted_by: String| match table.column(name, &wanted_by) {
-        Ok(index) => Some(index),
-        Err(problem) => {
-            problems.push(problem);
-            None
-        }
-    };
-    let subject_column = column(&study.trials.subject_column, "[trials] subject".into());
-    let run_column = column(&study.trials.run_column, "[trials] run".into());
-    let mut events = Vec::new();
-    for event in &study.events {
-        let onset = column(
-            &event.onset_column,
-            format!("the onset of event \"{}\"", event.name),
-        );
-        let duration = match &event.duration {
-            Duration::Seconds(_) => Some(None),
-            Duration::Column(name) => {
-                column(name, format!("the duration of event \"{}\"", event.name)).map(Some)
+    let mut collector = RunCollector::new(study, table, scans)?;
+    collector.add(table);
+    collector.finish()
+}
+
+/// Trials of a study's runs gathered from a trial table read a chunk at a time (any
+/// number of [`Table`]s with the same columns, in file order).
+pub struct RunCollector<'s> {
+    study: &'s Study,
+    scans: &'s ScanTable,
+    path: std::path::PathBuf,
+    subject_column: usize,
+    run_column: usize,
+    events: Vec<EventColumns>,
+    runs: Vec<RunTrials>,
+    /// Run of each (subject, run) pair; `None` for a pair whose labels or scans were refused.
+    index_of: HashMap<(String, String), Option<usize>>,
+    /// A fingerprint and the line of every row that holds an onset, to catch rows pasted twice.
+    fingerprints: Vec<(u128, usize)>,
+    problems: Problems,
+}
+
+impl<'s> RunCollector<'s> {
+    /// Finds the columns the study needs in the table's header (`table` may be the
+    /// first chunk: only its header is read here).
+    pub fn new(study: &'s Study, table: &Table, scans: &'s ScanTable) -> Result<Self> {
+        let mut problems = Problems::default();
+        let mut column = |name: &str, wanted_by: String| match table.column(name, &wanted_by) {
+            Ok(index) => Some(index),
+            Err(problem) => {
+                problems.push(problem);
+                None
             }
         };
-        let selector = match &event.selector {
-            None => Some(None),
-            Some(selector) => column(
-                &selector.column,
-                format!("type_column of event \"{}\"", event.name),
-            )
-            .map(|index| Some((index, selector.value.clone()))),
-        };
-        let mut modulators = Vec::new();
-        for model in &study.models {
-            for modulator in model.modulators.iter().filter(|m| m.event == event.name) {
-                let wanted_by = format!("model \"{}\"", model.name);
-                if let Some(index) = column(&modulator.column, wanted_by) {
-                    modulators.push((model.name.clone(), modulator.column.clone(), index));
+        let subject_column = column(&study.trials.subject_column, "[trials] subject".into());
+        let run_column = column(&study.trials.run_column, "[trials] run".into());
+        let mut events = Vec::new();
+        for event in &study.events {
+            let onset = column(
+                &event.onset_column,
+                format!("the onset of event \"{}\"", event.name),
+            );
+            let duration = match &event.duration {
+                Duration::Seconds(_) => Some(None),
+                Duration::Column(name) => {
+                    column(name, format!("the duration of event \"{}\"", event.name)).map(Some)
+                }
+            };
+            let selector = match &event.selector {
+                None => Some(None),
+                Some(selector) => column(
+                    &selector.column,
+                    format!("type_column of event \"{}\"", event.name),
+                )
+                .map(|index| Some((index, selector.value.clone()))),
+            };
+            let mut modulators = Vec::new();
+            for model in &study.models {
+                for modulator in model.modulators.iter().filter(|m| m.event == event.name) {
+                    let wanted_by = format!("model \"{}\"", model.name);
+                    if let Some(index) = column(&modulator.column, wanted_by) {
+                        modulators.push((model.name.clone(), modulator.column.clone(), index));
+                    }
                 }
             }
+            if let (Some(onset), Some(duration), Some(selector)) = (onset, duration, selector) {
+                events.push(EventColumns {
+                    onset,
+                    duration,
+                    selector,
+                    modulators,
+                });
+            }
         }
-        if let (Some(onset), Some(duration), Some(selector)) = (onset, duration, selector) {
-            events.push(EventColumns {
-                onset,
-                duration,
-                selector,
-                modulators,
-            });
-        }
-    }
-    let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
-        return Err(problems.finish(()).unwrap_err());
-    };
-    if !problems.is_empty() {
-        return Err(problems.finish(()).unwrap_err());
+        let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
+            return Err(problems.finish(()).unwrap_err());
+        };
+        problems.finish(())?;
+        Ok(RunCollector {
+            study,
+            scans,
+            path: table.path.clone(),
+            subject_column,
+            run_column,
+            events,
+            runs: Vec::new(),
+            index_of: HashMap::new(),
+            fingerprints: Vec::new(),
+            problems: Problems::default(),
+        })
     }
 
-    let mut runs: Vec<RunTrials> = Vec::new();
-    // Run of each (subject, run) pair; `None` for a pair whose labels or scans were refused.
-    let mut index_of: HashMap<(&str, &str), Option<usize>> = HashMap::new();
-    // The first line of every row that holds an onset, to catch rows pasted twice.
-    // Sized for every row at once: growing it would hash every row again.
-    let mut first_line: HashMap<Row<'_>, usize> = HashMap::with_capacity(table.row_count());
-    let mut previous: Option<((&str, &str), Option<usize>)> = None;
-    for row in table.rows() {
-        let has_onset = events
-            .iter()
-            .any(|columns| !super::is_missing(row.cell(columns.onset)));
-        if has_onset {
-            match first_line.entry(row) {
-                Entry::Occupied(earlier) => {
-                    problems.push(
-                        Problem::new(
-                            Location::line(&table.path, row.line()),
-                            format!("this row repeats line {} exactly", earlier.get()),
-                        )
-                        .with_hint(
-                            "a row pasted twice holds the same trial twice: remove one of them",
-                        ),
-                    );
-                    continue;
-                }
-                Entry::Vacant(entry) => {
-                    entry.insert(row.line());
-                }
-            }
-        }
-        let key = (row.cell(subject_column), row.cell(run_column));
+    /// Adds the trials of every row of `table`.
+    pub fn add(&mut self, table: &Table) {
         // Rows of one run usually follow each other: most rows need no lookup.
-        let run_index = match previous {
-            Some((last, index)) if last == key => index,
-            _ => {
-                let index = *index_of.entry(key).or_insert_with(|| {
-                    new_run_for(
-                        study,
-                        table,
-                        row,
-                        key,
-                        subject_column,
-                        run_column,
-                        scans,
-                        &events,
-                        &mut problems,
-                    )
-                    .map(|run| {
-                        runs.push(run);
-                        runs.len() - 1
-                    })
-                });
-                previous = Some((key, index));
-                index
+        let mut previous: Option<(Row<'_>, Option<usize>)> = None;
+        for row in table.rows() {
+            let has_onset = self
+                .events
+                .iter()
+                .any(|columns| !super::is_missing(row.cell(columns.onset)));
+            if has_onset {
+                self.fingerprints.push((fingerprint(row), row.line()));
             }
-        };
-        let Some(run_index) = run_index else {
-            continue;
-        };
-        for (spec, (columns, trials)) in study
-            .events
-            .iter()
-            .zip(events.iter().zip(runs[run_index].events.iter_mut()))
-        {
-            if let Err(problem) = add_trial(table, row, spec, columns, trials) {
-                problems.push(problem);
+            let (subject, run) = (row.cell(self.subject_column), row.cell(self.run_column));
+            let run_index = match previous {
+                Some((last, index))
+                    if last.cell(self.subject_column) == subject
+                        && last.cell(self.run_column) == run =>
+                {
+                    index
+                }
+                _ => {
+                    let index = self.run_index(table, row);
+                    previous = Some((row, index));
+                    index
+                }
+            };
+            let Some(run_index) = run_index else {
+                continue;
+            };
+            for (spec, (columns, trials)) in self.study.events.iter().zip(
+                self.events
+                    .iter()
+                    .zip(self.runs[run_index].events.iter_mut()),
+            ) {
+                if let Err(problem) = add_trial(table, row, spec, columns, trials) {
+                    self.problems.push(problem);
+                }
             }
         }
     }
-    for run in &runs {
-        check_times(table, study.acquisition.tr, run, &mut problems);
+
+    /// The run a row belongs to, made when its (subject, run) pair is new.
+    fn run_index(&mut self, table: &Table, row: Row<'_>) -> Option<usize> {
+        let key = (
+            row.cell(self.subject_column).to_string(),
+            row.cell(self.run_column).to_string(),
+        );
+        if let Some(&index) = self.index_of.get(&key) {
+            return index;
+        }
+        let index = new_run_for(
+            self.study,
+            table,
+            row,
+            (&key.0, &key.1),
+            (self.subject_column, self.run_column),
+            self.scans,
+            &self.events,
+            &mut self.problems,
+        )
+        .map(|mut run| {
+            if let Some(previous) = self.runs.last() {
+                run.reserve_like(previous);
+            }
+            self.runs.push(run);
+            self.runs.len() - 1
+        });
+        self.index_of.insert(key, index);
+        index
     }
-    problems.finish(runs)
+
+    /// The runs, or every problem found in the table.
+    pub fn finish(mut self) -> Result<Vec<RunTrials>> {
+        self.fingerprints.sort_unstable();
+        for pair in self.fingerprints.windows(2) {
+            let ((first, earlier), (second, line)) = (pair[0], pair[1]);
+            if first == second {
+                self.problems.push(
+                    Problem::new(
+                        Location::line(&self.path, line),
+                        format!("this row repeats line {earlier} exactly"),
+                    )
+                    .with_hint("a row pasted twice holds the same trial twice: remove one of them"),
+                );
+            }
+        }
+        for run in &mut self.runs {
+            check_times(
+                &self.path,
+                self.study.acquisition.tr,
+                run,
+                &mut self.problems,
+            );
+            run.shrink_to_fit();
+        }
+        self.problems.finish(self.runs)
+    }
+}
+
+/// A 128-bit fingerprint of a row's cells (XXH3): rows are told apart by it without
+/// keeping their text. Two different rows share one with a chance of about 2^-128.
+fn fingerprint(row: Row<'_>) -> u128 {
+    let mut hasher = xxhash_rust::xxh3::Xxh3::new();
+    for cell in row.cells() {
+        // The length keeps ("ab", "c") apart from ("a", "bc").
+        hasher.update(&(cell.len() as u64).to_le_bytes());
+        hasher.update(cell.as_bytes());
+    }
+    hasher.digest128()
 }
 
 /// A time as written in messages: huge values in exponent form.
@@ -198,12 +297,12 @@ const MAX_TIME_PROBLEMS: usize = 5;
 /// trials: onsets that fit the run once divided by 1000 were written in milliseconds;
 /// an onset more than 100 run lengths away, or a duration over 10 run lengths, is an
 /// error (the latter also keeps the microtime arithmetic in range).
-fn check_times(table: &Table, tr: f64, run: &RunTrials, problems: &mut Problems) {
+fn check_times(path: &std::path::Path, tr: f64, run: &RunTrials, problems: &mut Problems) {
     if tr.is_nan() || tr <= 0.0 || run.scans == 0 {
         return;
     }
     let length = run.scans as f64 * tr;
-    let at = |line: usize| Location::line(&table.path, line);
+    let at = |line: usize| Location::line(path, line);
     let trials = || {
         run.events.iter().flat_map(|event| {
             event
@@ -269,8 +368,7 @@ fn new_run_for(
     table: &Table,
     row: Row<'_>,
     (subject, run): (&str, &str),
-    subject_column: usize,
-    run_column: usize,
+    (subject_column, run_column): (usize, usize),
     scans: &ScanTable,
     events: &[EventColumns],
     problems: &mut Problems,

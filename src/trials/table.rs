@@ -4,8 +4,9 @@
 
 use std::path::{Path, PathBuf};
 
+use super::records::{Record, Records};
 use crate::error::{Error, Location, Problem, Result};
-use crate::files::{InputFiles, read_text};
+use crate::files::InputFiles;
 
 /// A table held compactly: the trimmed text of every cell in one buffer, with the end
 /// of each cell, so that a cohort's trial table of millions of cells costs about its
@@ -58,162 +59,108 @@ impl<'a> Row<'a> {
     }
 }
 
-impl Row<'_> {
-    /// The row's cells side by side, and where each ends in that text.
-    fn span(&self) -> (&str, &[u32]) {
-        let width = self.table.headers.len();
-        let first = self.index * width;
-        let start = if first == 0 {
-            0
-        } else {
-            self.table.ends[first - 1]
-        };
-        let ends = &self.table.ends[first..first + width];
-        (
-            &self.table.text[start as usize..ends[width - 1] as usize],
-            ends,
-        )
-    }
-}
-
-/// Rows are equal when their cells are (wherever they are in the file).
-impl PartialEq for Row<'_> {
-    fn eq(&self, other: &Self) -> bool {
-        let (text, ends) = self.span();
-        let (other_text, other_ends) = other.span();
-        // Same text, cut at the same places.
-        text == other_text
-            && ends
-                .iter()
-                .zip(other_ends)
-                .all(|(a, b)| a - ends[0] == b - other_ends[0])
-    }
-}
-
-impl Eq for Row<'_> {}
-
-/// Hashes the cells' text side by side: equal rows hash alike, and rows that differ
-/// only in where cells are cut are told apart by `eq`.
-impl std::hash::Hash for Row<'_> {
-    fn hash<H: std::hash::Hasher>(&self, state: &mut H) {
-        self.span().0.hash(state);
-    }
-}
-
 /// A cell that holds no value.
 pub fn is_missing(cell: &str) -> bool {
     let cell = cell.trim();
     cell.is_empty() || cell.eq_ignore_ascii_case("n/a")
 }
 
-/// The cell buffer's offsets are 32-bit: a larger table is refused with a message.
+/// What became of a record offered to a table.
+#[derive(Debug, PartialEq)]
+enum Pushed {
+    Row,
+    /// Every cell blank (e.g. a line of delimiters only): skipped.
+    Blank,
+    /// This many cells, not one per column.
+    Ragged(usize),
+}
+
+/// The cell buffer's offsets are 32-bit: a larger table (or chunk) is refused with a message.
 const MAX_TABLE_BYTES: usize = u32::MAX as usize;
 
 impl Table {
+    /// The whole table.
     pub fn read(files: &dyn InputFiles, path: &Path) -> Result<Table> {
-        let text = read_text(files, path)?;
-        Table::parse(path, &text)
+        let mut whole = None;
+        Table::read_in_chunks(files, path, usize::MAX, &mut |table| {
+            whole = Some(table);
+            Ok(())
+        })?;
+        whole.ok_or_else(|| Error::Internal("a table was read but not kept".into()))
     }
 
+    /// The table as consecutive tables of at most `rows` rows each, handed to `each`
+    /// as they are read, so that a cohort's trial table is never held whole. Every
+    /// problem (up to a limit) is returned at the end; `each` may have seen earlier
+    /// chunks by then.
+    pub fn read_in_chunks(
+        files: &dyn InputFiles,
+        path: &Path,
+        rows: usize,
+        each: &mut dyn FnMut(Table) -> Result<()>,
+    ) -> Result<()> {
+        let input = files.open(path).map_err(|err| cannot_read(path, &err))?;
+        read_stream(path, input, rows, each)
+    }
+
+    /// A table from its text (for tests and embedded files).
     pub fn parse(path: &Path, text: &str) -> Result<Table> {
-        let delimiter = delimiter_for(path)?;
-        if let Some(offset) = text.find('\0') {
-            let line = text[..offset].matches('\n').count() + 1;
-            return Err(Problem::new(
-                Location::line(path, line),
-                "the file holds NUL bytes: it is a binary file, not a text table",
-            )
-            .with_hint("export the table as UTF-8 CSV or TSV text")
-            .into());
+        let mut whole = None;
+        read_stream(path, text.as_bytes(), usize::MAX, &mut |table| {
+            whole = Some(table);
+            Ok(())
+        })?;
+        whole.ok_or_else(|| Error::Internal("a table was read but not kept".into()))
+    }
+
+    fn empty(path: &Path, headers: Vec<String>) -> Table {
+        Table {
+            path: path.to_path_buf(),
+            headers,
+            text: String::new(),
+            ends: Vec::new(),
+            lines: Vec::new(),
         }
-        if text.len() > MAX_TABLE_BYTES {
+    }
+
+    /// Appends a record's trimmed cells as a row; a record of blank cells, or of the
+    /// wrong length, is taken back out. An error for bytes that are not a text table.
+    fn push_record(&mut self, record: &Record<'_>) -> Result<Pushed> {
+        let (text, ends) = (self.text.len(), self.ends.len());
+        let mut blank = true;
+        for field in record.fields() {
+            let cell = std::str::from_utf8(field)
+                .map_err(|_| not_text(&self.path, record.line, false))?
+                .trim();
+            if cell.contains('\0') {
+                return Err(not_text(&self.path, record.line, true));
+            }
+            blank &= cell.is_empty();
+            self.text.push_str(cell);
+            self.ends.push(self.text.len().min(MAX_TABLE_BYTES) as u32);
+        }
+        let pushed = if record.cell_count() != self.headers.len() {
+            Pushed::Ragged(record.cell_count())
+        } else if blank {
+            Pushed::Blank
+        } else {
+            Pushed::Row
+        };
+        if pushed != Pushed::Row {
+            self.text.truncate(text);
+            self.ends.truncate(ends);
+            return Ok(pushed);
+        }
+        if self.text.len() > MAX_TABLE_BYTES {
             return Err(Problem::new(
-                Location::file(path),
+                Location::line(&self.path, record.line),
                 format!("the table is larger than {} GiB", MAX_TABLE_BYTES >> 30),
             )
             .with_hint("split the table, e.g. one file per group of participants, and check each with its own study file")
             .into());
         }
-        let lines = LineIndex::new(text);
-        let mut reader = csv::ReaderBuilder::new()
-            .delimiter(delimiter)
-            .has_headers(true)
-            .flexible(false)
-            .from_reader(text.as_bytes());
-        let headers: Vec<String> = reader
-            .headers()
-            .map_err(|err| csv_problem(path, &lines, &err))?
-            .iter()
-            .map(|h| h.trim().to_string())
-            .collect();
-        if headers.iter().all(|h| h.is_empty()) {
-            return Err(Problem::new(Location::file(path), "the table is empty")
-                .with_hint("the first line must be a header row naming the columns")
-                .into());
-        }
-        check_headers(path, &headers, delimiter)?;
-        let mut table = Table {
-            path: path.to_path_buf(),
-            // The cells are at most the text; rows at most its lines.
-            text: String::with_capacity(text.len()),
-            ends: Vec::with_capacity(lines.count() * headers.len()),
-            lines: Vec::with_capacity(lines.count()),
-            headers,
-        };
-        let mut problems = Vec::new();
-        let mut record = csv::ByteRecord::new();
-        loop {
-            match reader.read_byte_record(&mut record) {
-                Ok(false) => break,
-                Ok(true) => {
-                    let line = record.position().map_or(0, |p| lines.line_of(p.byte()));
-                    if let Err(problem) = table.push_record(&record, line) {
-                        problems.push(problem);
-                    }
-                }
-                Err(err) => problems.push(csv_problem(path, &lines, &err)),
-            }
-            if problems.len() >= crate::error::MAX_LISTED_PROBLEMS {
-                break;
-            }
-        }
-        if !problems.is_empty() {
-            return Err(Error::Input(problems));
-        }
-        if table.lines.is_empty() {
-            return Err(Problem::new(
-                Location::file(path),
-                "the table has a header but no rows",
-            )
-            .with_hint("the file may have been written before its program finished; export it again")
-            .into());
-        }
-        table.text.shrink_to_fit();
-        table.ends.shrink_to_fit();
-        table.lines.shrink_to_fit();
-        Ok(table)
-    }
-
-    /// Appends one record's trimmed cells; a blank line (e.g. at the end) is skipped.
-    fn push_record(&mut self, record: &csv::ByteRecord, line: usize) -> Result<(), Problem> {
-        let mut cells = Vec::with_capacity(record.len());
-        for field in record {
-            // The text is UTF-8 and every delimiter is ASCII, so each field is UTF-8 too.
-            let cell = std::str::from_utf8(field).map_err(|_| {
-                Problem::new(Location::line(&self.path, line), "a cell is not UTF-8 text")
-                    .with_hint("save the table as UTF-8 CSV or TSV")
-            })?;
-            cells.push(cell.trim());
-        }
-        if cells.iter().all(|cell| cell.is_empty()) {
-            return Ok(());
-        }
-        for cell in cells {
-            self.text.push_str(cell);
-            self.ends.push(self.text.len() as u32);
-        }
-        self.lines.push(line as u32);
-        Ok(())
+        self.lines.push(record.line.min(u32::MAX as usize) as u32);
+        Ok(Pushed::Row)
     }
 
     /// The number of rows (blank lines not counted).
@@ -385,45 +332,102 @@ fn check_headers(path: &Path, headers: &[String], delimiter: u8) -> Result<()> {
     Ok(())
 }
 
-/// Line numbers from byte offsets (the csv crate's own line count is off by one for CRLF files).
-struct LineIndex(Vec<usize>);
+fn cannot_read(path: &Path, err: &std::io::Error) -> Error {
+    Problem::new(Location::file(path), format!("cannot read the file: {err}"))
+        .with_hint("check the path; relative paths are taken from the study file's folder")
+        .into()
+}
 
-impl LineIndex {
-    fn new(text: &str) -> Self {
-        LineIndex(text.match_indices('\n').map(|(i, _)| i).collect())
-    }
-
-    /// The number of lines (an upper bound on the rows).
-    fn count(&self) -> usize {
-        self.0.len() + 1
-    }
-
-    /// 1-based line holding byte `offset`.
-    fn line_of(&self, offset: u64) -> usize {
-        // With CRLF ends the csv reader puts a record's start on the LF that precedes it.
-        self.0
-            .partition_point(|&newline| (newline as u64) <= offset)
-            + 1
+fn not_text(path: &Path, line: usize, binary: bool) -> Error {
+    if binary {
+        Problem::new(
+            Location::line(path, line),
+            "the file holds NUL bytes: it is a binary file, not a text table",
+        )
+        .with_hint("export the table as UTF-8 CSV or TSV text")
+        .into()
+    } else {
+        crate::files::not_utf8_problem(path, line).into()
     }
 }
 
-fn csv_problem(path: &Path, lines: &LineIndex, err: &csv::Error) -> Problem {
-    let line = err.position().map_or(0, |p| lines.line_of(p.byte()));
-    let location = if line > 0 {
-        Location::line(path, line)
-    } else {
-        Location::file(path)
-    };
-    match err.kind() {
-        csv::ErrorKind::UnequalLengths {
-            expected_len, len, ..
-        } => Problem::new(
-            location,
-            format!("this row has {len} cells but the header has {expected_len}"),
-        )
-        .with_hint("every row needs one cell per column; write n/a for a missing value"),
-        _ => Problem::new(location, format!("cannot read the table: {err}")),
+fn read_stream(
+    path: &Path,
+    input: impl std::io::Read,
+    chunk_rows: usize,
+    each: &mut dyn FnMut(Table) -> Result<()>,
+) -> Result<()> {
+    let delimiter = delimiter_for(path)?;
+    let mut records = Records::new(input, delimiter);
+    let read_error = |err: std::io::Error| cannot_read(path, &err);
+    let mut header = Table::empty(path, Vec::new());
+    if let Some(byte_order) = records.utf16().map_err(read_error)? {
+        return Err(crate::files::utf16_problem(path, byte_order).into());
     }
+    if let Some(record) = records.next_record().map_err(read_error)? {
+        header.headers = vec![String::new(); record.cell_count()];
+        header.push_record(&record)?;
+    }
+    let headers: Vec<String> = match header.row_count() {
+        0 => Vec::new(),
+        _ => header.row(0).cells().map(str::to_string).collect(),
+    };
+    if headers.iter().all(|h| h.is_empty()) {
+        return Err(Problem::new(Location::file(path), "the table is empty")
+            .with_hint("the first line must be a header row naming the columns")
+            .into());
+    }
+    check_headers(path, &headers, delimiter)?;
+    let mut problems = Vec::new();
+    let mut chunk = Table::empty(path, headers.clone());
+    let mut rows = 0;
+    while let Some(record) = records.next_record().map_err(read_error)? {
+        match chunk.push_record(&record)? {
+            Pushed::Row => {}
+            Pushed::Blank => continue,
+            Pushed::Ragged(count) => {
+                problems.push(
+                    Problem::new(
+                        Location::line(path, record.line),
+                        format!(
+                            "this row has {count} cells but the header has {}",
+                            headers.len()
+                        ),
+                    )
+                    .with_hint(
+                        "every row needs one cell per column; write n/a for a missing value",
+                    ),
+                );
+                if problems.len() >= crate::error::MAX_LISTED_PROBLEMS {
+                    break;
+                }
+                continue;
+            }
+        }
+        rows += 1;
+        if chunk.row_count() >= chunk_rows {
+            each(std::mem::replace(
+                &mut chunk,
+                Table::empty(path, headers.clone()),
+            ))?;
+        }
+    }
+    if !problems.is_empty() {
+        return Err(Error::Input(problems));
+    }
+    if rows == 0 {
+        return Err(
+            Problem::new(Location::file(path), "the table has a header but no rows")
+                .with_hint(
+                    "the file may have been written before its program finished; export it again",
+                )
+                .into(),
+        );
+    }
+    if chunk.row_count() > 0 {
+        each(chunk)?;
+    }
+    Ok(())
 }
 
 #[cfg(test)]

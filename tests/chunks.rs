@@ -1,0 +1,74 @@
+//! A trial table read a chunk at a time gives exactly the runs of the table read whole,
+//! and a row repeated in another chunk is still caught.
+
+mod common;
+
+use std::path::Path;
+
+use common::StudyDir;
+use tangle::files::{DiskFiles, read_text};
+use tangle::study::{Study, parse_study};
+use tangle::trials::{RunCollector, RunTrials, ScanTable, Table, collect_runs};
+
+fn study(path: &Path) -> Study {
+    parse_study(path, &read_text(&DiskFiles, path).unwrap()).unwrap()
+}
+
+fn in_chunks(study: &Study, rows: usize) -> tangle::Result<Vec<RunTrials>> {
+    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
+    let mut collector = None;
+    let mut chunks = 0;
+    Table::read_in_chunks(&DiskFiles, &study.trials.file, rows, &mut |chunk| {
+        assert!(chunk.row_count() <= rows);
+        chunks += 1;
+        let collector = match &mut collector {
+            Some(collector) => collector,
+            None => collector.insert(RunCollector::new(study, &chunk, &scans)?),
+        };
+        collector.add(&chunk);
+        Ok(())
+    })?;
+    assert!(chunks > 1, "the table should span several chunks");
+    collector.unwrap().finish()
+}
+
+#[test]
+fn chunks_of_any_size_give_the_runs_of_the_whole_table() {
+    let study = study(Path::new("demo-data/study.toml"));
+    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
+    let whole = collect_runs(
+        &study,
+        &Table::read(&DiskFiles, &study.trials.file).unwrap(),
+        &scans,
+    )
+    .unwrap();
+    assert_eq!(whole.len(), 60, "20 volunteers × 3 runs in the demo");
+    for rows in [1, 7, 80, 1000] {
+        assert_eq!(
+            in_chunks(&study, rows).unwrap(),
+            whole,
+            "chunks of {rows} rows"
+        );
+    }
+}
+
+#[test]
+fn a_row_repeated_in_a_later_chunk_is_an_error() {
+    let trials = std::fs::read_to_string("demo-data/trials.csv").unwrap();
+    let second_line = trials.lines().nth(1).unwrap();
+    let lines = trials.lines().count();
+    let dir = StudyDir::new();
+    let text = std::fs::read_to_string("demo-data/study.toml").unwrap();
+    dir.file("study.toml", &text)
+        .file("trials.csv", &format!("{trials}{second_line}\n"));
+    let err = in_chunks(&study(&dir.path("study.toml")), 7)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains(&format!(
+            "trials.csv, line {}: this row repeats line 2 exactly",
+            lines + 1
+        )),
+        "{err}"
+    );
+}
