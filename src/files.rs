@@ -95,6 +95,9 @@ pub fn read_text(files: &dyn InputFiles, path: &Path) -> crate::Result<String> {
         Problem::new(Location::file(path), format!("cannot read the file: {err}"))
             .with_hint("check the path; relative paths are taken from the study file's folder")
     })?;
+    if let Some(encoding) = utf16_mark(&bytes) {
+        return Err(utf16_problem(path, encoding).into());
+    }
     let mut bytes = bytes;
     if bytes.starts_with(b"\xEF\xBB\xBF") {
         bytes.drain(..3);
@@ -106,13 +109,37 @@ pub fn read_text(files: &dyn InputFiles, path: &Path) -> crate::Result<String> {
             .filter(|&&b| b == b'\n')
             .count()
             + 1;
-        Problem::new(
-            Location::line(path, line),
-            "the file is not UTF-8 text (or is a binary file)",
-        )
-        .with_hint("save it as UTF-8 CSV or TSV")
-        .into()
+        not_utf8_problem(path, line).into()
     })
+}
+
+/// The UTF-16 byte order a file's first bytes announce, if they are a UTF-16 mark.
+pub fn utf16_mark(start: &[u8]) -> Option<&'static str> {
+    match start {
+        [0xFF, 0xFE, ..] => Some("little-endian"),
+        [0xFE, 0xFF, ..] => Some("big-endian"),
+        _ => None,
+    }
+}
+
+/// A file saved as UTF-16 (as some spreadsheet "Unicode text" exports are).
+pub fn utf16_problem(path: &Path, byte_order: &str) -> crate::error::Problem {
+    use crate::error::{Location, Problem};
+    Problem::new(
+        Location::line(path, 1),
+        format!("the file is UTF-16 text ({byte_order}), not UTF-8"),
+    )
+    .with_hint("save it again as UTF-8 (e.g. \"CSV UTF-8\" in a spreadsheet's save dialog)")
+}
+
+/// Bytes that are not UTF-8, at `line`.
+pub fn not_utf8_problem(path: &Path, line: usize) -> crate::error::Problem {
+    use crate::error::{Location, Problem};
+    Problem::new(
+        Location::line(path, line),
+        "the file is not UTF-8 text (or is a binary file)",
+    )
+    .with_hint("save it as UTF-8 CSV or TSV; text with accents saved as Latin-1 or Windows-1252 (a spreadsheet's default on some systems) is not UTF-8")
 }
 
 #[cfg(test)]

@@ -200,10 +200,42 @@ fn scans_file_must_list_every_run() {
 fn binary_garbage_is_rejected_cleanly() {
     let dir = StudyDir::new();
     dir.file("study.toml", &good_study());
-    std::fs::write(dir.path("trials.csv"), [0xff, 0xfe, 0x00, 0x41, 0x0a, 0x80]).unwrap();
+    std::fs::write(dir.path("trials.csv"), [0x80, 0xfe, 0x00, 0x41, 0x0a, 0x80]).unwrap();
     let err = fails_in(&dir);
     assert!(
         err.contains("trials.csv, line 1: the file is not UTF-8 text"),
+        "{err}"
+    );
+}
+
+#[test]
+fn utf16_and_latin1_tables_are_named_as_such() {
+    let dir = StudyDir::new();
+    dir.file("study.toml", &good_study());
+    let utf16: Vec<u8> = [0xff, 0xfe]
+        .into_iter()
+        .chain(TRIALS.encode_utf16().flat_map(u16::to_le_bytes))
+        .collect();
+    std::fs::write(dir.path("trials.csv"), utf16).unwrap();
+    let err = fails_in(&dir);
+    assert!(
+        err.contains("trials.csv, line 1: the file is UTF-16 text (little-endian), not UTF-8"),
+        "{err}"
+    );
+    // "é" in Latin-1 is the single byte 0xE9, which is not UTF-8, on the third line.
+    let mut latin1 = TRIALS.as_bytes().to_vec();
+    let third_line = latin1
+        .iter()
+        .enumerate()
+        .filter(|(_, b)| **b == b'\n')
+        .nth(1)
+        .map(|(i, _)| i + 1)
+        .unwrap();
+    latin1.splice(third_line..third_line, *b"caf\xE9,");
+    std::fs::write(dir.path("trials.csv"), latin1).unwrap();
+    let err = fails_in(&dir);
+    assert!(
+        err.contains("trials.csv, line 3: the file is not UTF-8 text") && err.contains("Latin-1"),
         "{err}"
     );
 }
