@@ -8,7 +8,7 @@ use crate::design::Design;
 
 pub(crate) fn filtered_correlation(count: usize, unit: &UnitColumns) -> Vec<Vec<Option<f64>>> {
     let mut matrix = vec![vec![None; count]; count];
-    let gram = unit.matrix.transpose() * &unit.matrix;
+    let gram = unit.matrix.tr_mul(&unit.matrix);
     for (a, &i) in unit.indices.iter().enumerate() {
         for (b, &j) in unit.indices.iter().enumerate() {
             let r = if a == b {

@@ -337,7 +337,7 @@ fn groups_without(design: &Design, core: &Core, left_out: Option<usize>) -> Vec<
 
 fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
     let kept = kept_matrix(core);
-    let gram = kept.transpose() * &kept;
+    let gram = kept.tr_mul(&kept);
     design
         .regressors
         .iter()
@@ -375,11 +375,14 @@ fn model_overlaps(design: &Design, core: &Core) -> Vec<ModelOverlap> {
         .iter()
         .filter(|g| g.name != partition::TASK && g.name != partition::NUISANCE)
         .collect();
+    let sets: Vec<&[usize]> = models.iter().map(|g| g.members.as_slice()).collect();
+    let mut pairs = partition::overlap::overlaps(&kept, &sets, &controls).into_iter();
     let mut result = Vec::new();
     for (i, first) in models.iter().enumerate() {
         for second in &models[i + 1..] {
-            let (canonical_correlations, explained) =
-                partition::overlap::overlap(&kept, &first.members, &second.members, &controls);
+            let Some((canonical_correlations, explained)) = pairs.next() else {
+                break;
+            };
             result.push(ModelOverlap {
                 models: [first.name.clone(), second.name.clone()],
                 canonical_correlations,

@@ -41,7 +41,7 @@ pub(crate) fn generalized_vif(
     let kept = DMatrix::from_fn(unit.matrix.nrows(), spectrum.kept.len(), |row, col| {
         unit.matrix[(row, spectrum.kept[col])]
     });
-    let gram = kept.transpose() * kept;
+    let gram = kept.tr_mul(&kept);
     let rest: Vec<usize> = (0..spectrum.kept.len())
         .filter(|p| !set.contains(p))
         .collect();

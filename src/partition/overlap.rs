@@ -36,7 +36,7 @@ fn basis(matrix: &DMatrix<f64>) -> DMatrix<f64> {
 }
 
 fn residualise(matrix: &DMatrix<f64>, controls: &DMatrix<f64>) -> DMatrix<f64> {
-    matrix - controls * (controls.transpose() * matrix)
+    matrix - controls * controls.tr_mul(matrix)
 }
 
 fn columns_of(matrix: &DMatrix<f64>, which: &[usize]) -> DMatrix<f64> {
@@ -52,7 +52,7 @@ fn explained_by(set: &DMatrix<f64>, other: &DMatrix<f64>) -> f64 {
         if norm <= EMPTY {
             continue;
         }
-        total += (other.transpose() * column / norm).norm_squared();
+        total += (other.tr_mul(&column) / norm).norm_squared();
         count += 1;
     }
     if count == 0 {
@@ -70,11 +70,40 @@ pub fn overlap(
     b: &[usize],
     controls: &[usize],
 ) -> (Vec<f64>, [f64; 2]) {
+    let mut pairs = overlaps(unit, &[a, b], controls);
+    pairs.remove(0)
+}
+
+/// [`overlap`] of every pair of `sets` (first with second, first with third, …, second
+/// with third, …), the controls' basis and each set's residual basis made once.
+pub fn overlaps(
+    unit: &DMatrix<f64>,
+    sets: &[&[usize]],
+    controls: &[usize],
+) -> Vec<(Vec<f64>, [f64; 2])> {
     let controls = basis(&columns_of(unit, controls));
-    let set_a = residualise(&columns_of(unit, a), &controls);
-    let set_b = residualise(&columns_of(unit, b), &controls);
-    let (basis_a, basis_b) = (basis(&set_a), basis(&set_b));
-    let cross = basis_a.transpose() * &basis_b;
+    let residuals: Vec<DMatrix<f64>> = sets
+        .iter()
+        .map(|set| residualise(&columns_of(unit, set), &controls))
+        .collect();
+    let bases: Vec<DMatrix<f64>> = residuals.iter().map(basis).collect();
+    let mut pairs = Vec::new();
+    for i in 0..sets.len() {
+        for j in i + 1..sets.len() {
+            pairs.push(pair(
+                (&residuals[i], &bases[i]),
+                (&residuals[j], &bases[j]),
+            ));
+        }
+    }
+    pairs
+}
+
+fn pair(
+    (set_a, basis_a): (&DMatrix<f64>, &DMatrix<f64>),
+    (set_b, basis_b): (&DMatrix<f64>, &DMatrix<f64>),
+) -> (Vec<f64>, [f64; 2]) {
+    let cross = basis_a.tr_mul(basis_b);
     let mut correlations: Vec<f64> = if cross.nrows() == 0 || cross.ncols() == 0 {
         Vec::new()
     } else {
@@ -87,10 +116,7 @@ pub fn overlap(
     correlations.sort_by(|x, y| y.total_cmp(x));
     (
         correlations,
-        [
-            explained_by(&set_a, &basis_b),
-            explained_by(&set_b, &basis_a),
-        ],
+        [explained_by(set_a, basis_b), explained_by(set_b, basis_a)],
     )
 }
 
