@@ -142,7 +142,7 @@ impl ReportHead {
             cohort: summaries.cohort,
             subject_partition: summaries.subject_partition,
             cohort_partition: summaries.cohort_partition,
-            claims_note: CLAIMS_NOTE,
+            claims_note: crate::report::model::Text::Borrowed(CLAIMS_NOTE),
         }
     }
 }

@@ -35,9 +35,9 @@ pub enum Command {
         /// The shard reports (JSON), in any order.
         #[arg(required = true, value_name = "FILES")]
         files: Vec<PathBuf>,
-        /// Output format (the merged report is JSON).
-        #[arg(long, value_enum, default_value_t = MergeFormat::Json)]
-        format: MergeFormat,
+        /// Output format: any format of `check` (the merged report is rebuilt from JSON).
+        #[arg(long, value_enum, default_value_t = Format::Json)]
+        format: Format,
         /// Write the output to this file (atomically) instead of standard output.
         #[arg(long, value_name = "FILE")]
         out: Option<PathBuf>,
@@ -72,11 +72,6 @@ pub enum Command {
         #[arg(long)]
         quiet: bool,
     },
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum MergeFormat {
-    Json,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

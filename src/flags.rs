@@ -1,12 +1,12 @@
 //! Screening flags: something a user must know about a run, with how much it matters.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// How much a flag matters. `note`s inform; `warning`s say that a claim (e.g. one model
 /// beating another on a regressor) would not be supported — neither changes a status;
 /// `caution` and `severe` follow the study's thresholds; `error` means a number could not
 /// be computed.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Severity {
     Note,
@@ -28,11 +28,12 @@ impl Severity {
     }
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Flag {
     pub severity: Severity,
-    /// A stable machine-readable code, e.g. `vif_severe`.
-    pub code: &'static str,
+    /// A stable machine-readable code, e.g. `vif_severe` (owned only when read back
+    /// from a report's JSON).
+    pub code: std::borrow::Cow<'static, str>,
     /// Names of the regressors involved (may be empty).
     pub regressors: Vec<String>,
     pub message: String,
@@ -47,7 +48,7 @@ impl Flag {
     ) -> Self {
         Flag {
             severity,
-            code,
+            code: std::borrow::Cow::Borrowed(code),
             regressors,
             message: message.into(),
         }

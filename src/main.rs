@@ -39,7 +39,7 @@ fn run(cli: &Cli) -> ExitCode {
         }
         Command::Check { study, output } => check_file(&DiskFiles, study, options(output))
             .and_then(|report| deliver(&report, output)),
-        Command::Merge { files, out, .. } => merge(files, out.as_deref()),
+        Command::Merge { files, format, out } => merge(files, *format, out.as_deref()),
         Command::Demo { output } => {
             tangle::demo::check_demo(options(output)).and_then(|report| deliver(&report, output))
         }
@@ -196,7 +196,11 @@ fn check_streaming(study: &Path, output: &OutputArgs) -> tangle::Result<ExitCode
     Ok(fail_on(&subjects, output))
 }
 
-fn merge(files: &[std::path::PathBuf], out: Option<&Path>) -> tangle::Result<ExitCode> {
+fn merge(
+    files: &[std::path::PathBuf],
+    format: Format,
+    out: Option<&Path>,
+) -> tangle::Result<ExitCode> {
     let mut shards = Vec::new();
     for path in files {
         let text = tangle::files::read_text(&DiskFiles, path)?;
@@ -204,6 +208,11 @@ fn merge(files: &[std::path::PathBuf], out: Option<&Path>) -> tangle::Result<Exi
     }
     let mut merged = Vec::new();
     tangle::merge::merge_json(&shards, &mut merged)?;
+    if format != Format::Json {
+        let report = tangle::merge::merged_report(&merged)?;
+        write_report(&report, format, out)?;
+        return Ok(ExitCode::SUCCESS);
+    }
     let text = String::from_utf8(merged)
         .map_err(|_| Error::Internal("the merged report is not UTF-8".into()))?;
     match out {
@@ -241,19 +250,24 @@ fn options(output: &OutputArgs) -> CheckOptions {
 }
 
 fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
-    let text = match output.format {
+    write_report(report, output.format, output.out.as_deref())?;
+    Ok(fail_on(&report.subjects, output))
+}
+
+fn write_report(report: &Report, format: Format, out: Option<&Path>) -> tangle::Result<()> {
+    let text = match format {
         Format::Table => report::table::render(report),
         Format::Tsv => report::tsv::render_joined(report),
         Format::Json => report::json::render(report),
         Format::Html => report::html::render(report),
         Format::Methods => report::methods::render(report),
     };
-    match (&output.out, output.format) {
+    match (out, format) {
         (Some(path), Format::Tsv) => {
             tangle::output::write_tables(path, &report::tsv::render(report), "regressors")?
         }
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
         (None, _) => print_to_stdout(&text)?,
     }
-    Ok(fail_on(&report.subjects, output))
+    Ok(())
 }

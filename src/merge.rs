@@ -257,3 +257,10 @@ fn indented<T: serde::Serialize>(out: &mut Vec<u8>, value: &T) -> Result<()> {
     }
     Ok(())
 }
+
+/// The merged report as the report model, for the formats other than JSON: read back
+/// from the merged JSON, so every format shows exactly the numbers the JSON holds.
+pub fn merged_report(merged_json: &[u8]) -> Result<crate::report::Report> {
+    serde_json::from_slice(merged_json)
+        .map_err(|err| Error::Internal(format!("cannot read back the merged report: {err}")))
+}

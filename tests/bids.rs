@@ -233,7 +233,11 @@ fn the_study_file_overrides_the_data_with_a_flag() {
     );
     let report = check_file(&DiskFiles, &study, CheckOptions::default()).expect("valid");
     assert_eq!(report.settings.tr, 2.5);
-    let codes: Vec<&str> = report.runs[0].flags.iter().map(|f| f.code).collect();
+    let codes: Vec<&str> = report.runs[0]
+        .flags
+        .iter()
+        .map(|f| f.code.as_ref())
+        .collect();
     assert!(codes.contains(&"tr_disagrees_with_data"), "{codes:?}");
     assert!(codes.contains(&"scans_disagree_with_data"), "{codes:?}");
     // A derivative table with a row too many is an error naming both files.
@@ -269,9 +273,9 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
     assert_eq!(bids.runs.len(), 60);
     assert_eq!(vifs(&bids), vifs(&flat));
     for (b, f) in bids.runs.iter().zip(&flat.runs) {
-        let codes = |r: &tangle::report::model::RunReport| -> Vec<&str> {
-            r.flags.iter().map(|f| f.code).collect()
-        };
+        fn codes(r: &tangle::report::model::RunReport) -> Vec<&str> {
+            r.flags.iter().map(|f| f.code.as_ref()).collect()
+        }
         assert_eq!(codes(b), codes(f), "subject {} run {}", b.subject, b.run);
         assert_eq!(b.status, f.status);
     }

@@ -96,3 +96,66 @@ fn a_bad_shard_is_a_usage_error() {
         assert_eq!(output.status.code(), Some(2), "{bad}"); // clap's usage exit code
     }
 }
+
+#[test]
+fn merged_shards_in_every_other_format_equal_the_unsharded_check() {
+    let dir = tempfile::tempdir().expect("temporary folder");
+    let mut shards = Vec::new();
+    for k in 1..=2 {
+        let path = dir.path().join(format!("shard-{k}.json"));
+        check(&["--shard", &format!("{k}/2")], &path);
+        shards.push(path);
+    }
+    for format in ["table", "html", "methods"] {
+        let whole = tangle()
+            .args(["check", "demo-data/study.toml", "--format", format])
+            .current_dir(env!("CARGO_MANIFEST_DIR"))
+            .output()
+            .expect("tangle runs");
+        assert!(whole.status.success());
+        let merged = tangle()
+            .args(["merge", "--format", format])
+            .args(&shards)
+            .output()
+            .expect("tangle runs");
+        assert!(
+            merged.status.success(),
+            "{}",
+            String::from_utf8_lossy(&merged.stderr)
+        );
+        assert!(
+            merged.stdout == whole.stdout,
+            "--format {format}: the merged report differs from the unsharded one"
+        );
+    }
+    // TSV with --out writes one file per table: compare each.
+    let whole = dir.path().join("whole");
+    let merged = dir.path().join("merged");
+    let status = tangle()
+        .args(["check", "demo-data/study.toml", "--format", "tsv", "--out"])
+        .arg(whole.join("report.tsv"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .status()
+        .expect("tangle runs");
+    assert!(status.success());
+    let status = tangle()
+        .args(["merge", "--format", "tsv", "--out"])
+        .arg(merged.join("report.tsv"))
+        .args(&shards)
+        .status()
+        .expect("tangle runs");
+    assert!(status.success());
+    let mut names: Vec<_> = std::fs::read_dir(&whole)
+        .expect("tables written")
+        .map(|entry| entry.expect("entry").file_name())
+        .collect();
+    names.sort();
+    assert!(names.len() > 3, "{names:?}");
+    for name in names {
+        assert_eq!(
+            std::fs::read(whole.join(&name)).expect("read"),
+            std::fs::read(merged.join(&name)).expect("merged table written"),
+            "{name:?}"
+        );
+    }
+}

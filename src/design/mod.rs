@@ -10,11 +10,11 @@ pub mod regressors;
 
 pub use build::{DesignSettings, build_design};
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::flags::Flag;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum RegressorKind {
     Onset,
@@ -39,7 +39,7 @@ impl RegressorKind {
     }
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Regressor {
     pub name: String,
     pub kind: RegressorKind,
@@ -71,7 +71,7 @@ pub struct Design {
 }
 
 /// An event's trials inside the run (those starting after its end are left out).
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct EventSummary {
     pub event: String,
     pub trials: usize,

@@ -10,11 +10,11 @@
 //! published recipe keeps the intercept and does not centre, which [`belsley`] does.
 
 use nalgebra::DMatrix;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::{Spectrum, UnitColumns};
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Conditioning {
     /// One per dimension, largest singular value first (so the first is 1).
     pub condition_indices: Vec<f64>,

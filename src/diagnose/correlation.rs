@@ -1,7 +1,7 @@
 //! Pairwise correlations: of the filtered design's columns (what the GLM sees), and of
 //! the modulators' raw trial-level values (what the models produce, before the HRF).
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::UnitColumns;
 use crate::design::Design;
@@ -24,7 +24,7 @@ pub(crate) fn filtered_correlation(count: usize, unit: &UnitColumns) -> Vec<Vec<
 
 /// Pearson correlation of two modulators of the same event over the trials where both
 /// have a value.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TrialCorrelation {
     pub event: String,
     pub regressors: [String; 2],

@@ -7,7 +7,7 @@
 //! combination found by least squares, so users see e.g. `total ≈ 1.00·a + 1.00·b`.
 
 use nalgebra::{DMatrix, DVector};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::UnitColumns;
 use crate::flags::{Flag, Severity};
@@ -19,7 +19,7 @@ pub const DEPENDENCY_TOLERANCE: f64 = 1e-6;
 /// Coefficients smaller than this fraction of the largest are not part of the combination.
 const NEGLIGIBLE_COEFFICIENT: f64 = 1e-6;
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Dependency {
     /// The dependent regressor first, then those it is a combination of.
     pub regressors: Vec<String>,

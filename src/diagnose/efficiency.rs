@@ -8,11 +8,11 @@
 //! cᵀ(XᵀX)⁻¹c divided by 1/‖x_a‖² + 1/‖x_b‖², the variance the same contrast would have if
 //! the two regressors were uncorrelated with each other and with everything else.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::{Spectrum, UnitColumns};
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Contrast {
     /// e.g. "delta:delta_pe - hybrid:hybrid_pe".
     pub name: String,

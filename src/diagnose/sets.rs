@@ -5,11 +5,11 @@
 //! is √VIF). Here each model's parametric modulators form a set.
 
 use nalgebra::DMatrix;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::{Spectrum, UnitColumns};
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ModelSet {
     pub model: String,
     /// The model's modulators that are in the design.

@@ -4,14 +4,14 @@
 
 use std::collections::HashMap;
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::RegressorPartition;
 
 /// `unique`, or the group shared with (a model's name, `task`, `nuisance`).
 pub const UNIQUE: &str = "unique";
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ParticipantShare {
     pub subject: String,
     pub regressor: String,
@@ -23,7 +23,7 @@ pub struct ParticipantShare {
     pub mean: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct CohortShare {
     pub regressor: String,
     pub part: String,

@@ -12,19 +12,19 @@ pub mod signal;
 pub use overlap::ModelOverlap;
 
 use nalgebra::DMatrix;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Group of the onset and derivative regressors: the task's timing.
 pub const TASK: &str = "task";
 pub const NUISANCE: &str = "nuisance";
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Component {
     pub groups: Vec<String>,
     pub share: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct GroupShare {
     pub group: String,
     /// Sum of the components that include this group (parts also shared with other
@@ -32,7 +32,7 @@ pub struct GroupShare {
     pub share: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct RegressorPartition {
     pub regressor: String,
     /// The regressor's own model (its fellow modulators form the group of that name).

@@ -5,9 +5,9 @@
 //! R² on the other set).
 
 use nalgebra::DMatrix;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ModelOverlap {
     pub models: [String; 2],
     /// Largest first; as many as the smaller set has dimensions.
@@ -90,10 +90,7 @@ pub fn overlaps(
     let mut pairs = Vec::new();
     for i in 0..sets.len() {
         for j in i + 1..sets.len() {
-            pairs.push(pair(
-                (&residuals[i], &bases[i]),
-                (&residuals[j], &bases[j]),
-            ));
+            pairs.push(pair((&residuals[i], &bases[i]), (&residuals[j], &bases[j])));
         }
     }
     pairs

@@ -11,7 +11,7 @@
 use nalgebra::{Cholesky, DMatrix, DVector, Dyn};
 use rand::rngs::Xoshiro256PlusPlus;
 use rand::{RngExt, SeedableRng};
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::{Group, commonality};
 use crate::design::filter::DriftBasis;
@@ -31,7 +31,7 @@ impl Default for BootstrapSettings {
     }
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SignalComponent {
     pub groups: Vec<String>,
     /// Share of the region's (filtered) variance.
@@ -41,7 +41,7 @@ pub struct SignalComponent {
     pub high: f64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct RegionPartition {
     pub region: String,
     /// R² of the whole design.

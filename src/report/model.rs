@@ -1,7 +1,7 @@
 //! The report model: one structure that every output format reads, so that no format
 //! keeps its own list of fields. Its JSON form is the contract of DESIGN.md.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::design::{Design, EventSummary, Regressor, RegressorKind};
 use crate::diagnose::{
@@ -17,7 +17,7 @@ use crate::study::{Study, Thresholds};
 /// Said in every output: the space the numbers live in.
 pub const DIAGNOSTICS_SPACE: &str = "VIFs and correlations of the filtered design: the constant and the cosine drift basis are projected out of every regressor first; nuisance regressors stay in as regressors";
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Report {
     pub tool: ToolInfo,
     pub study: StudyInfo,
@@ -30,31 +30,35 @@ pub struct Report {
     /// Per modulator, the distribution over participants of its unique and shared shares.
     pub cohort_partition: Vec<CohortShare>,
     /// Why shared variance limits model comparisons, and what to do instead.
-    pub claims_note: &'static str,
+    pub claims_note: Text,
 }
 
-#[derive(Debug, Clone, Serialize)]
+/// Fixed text of the tool (borrowed when made here, owned when read back from JSON by
+/// `tangle merge`).
+pub type Text = std::borrow::Cow<'static, str>;
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ToolInfo {
-    pub name: &'static str,
-    pub version: &'static str,
+    pub name: Text,
+    pub version: Text,
 }
 
 impl Default for ToolInfo {
     fn default() -> Self {
         ToolInfo {
-            name: env!("CARGO_PKG_NAME"),
-            version: env!("CARGO_PKG_VERSION"),
+            name: Text::Borrowed(env!("CARGO_PKG_NAME")),
+            version: Text::Borrowed(env!("CARGO_PKG_VERSION")),
         }
     }
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct StudyInfo {
     pub name: String,
     pub file: String,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Settings {
     pub tr: f64,
     pub microtime: usize,
@@ -63,17 +67,17 @@ pub struct Settings {
     pub hrf: HrfInfo,
     pub centring: bool,
     /// "none" or "serial".
-    pub orthogonalisation: &'static str,
+    pub orthogonalisation: Text,
     pub thresholds: Thresholds,
-    pub diagnostics_space: &'static str,
+    pub diagnostics_space: Text,
     pub dependency_tolerance: f64,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct HrfInfo {
-    pub shape: &'static str,
+    pub shape: Text,
     pub derivative: bool,
-    pub scaling: &'static str,
+    pub scaling: Text,
 }
 
 impl Settings {
@@ -84,20 +88,22 @@ impl Settings {
             reference: study.acquisition.reference,
             high_pass: study.high_pass,
             hrf: HrfInfo {
-                shape: "canonical double-gamma, g(t;6,1) - g(t;16,1)/6 on 0-32 s (Friston et al. 1998)",
+                shape: Text::Borrowed(
+                    "canonical double-gamma, g(t;6,1) - g(t;16,1)/6 on 0-32 s (Friston et al. 1998)",
+                ),
                 derivative: study.hrf.derivative,
-                scaling: "sampled kernel divided by the sum of its samples",
+                scaling: Text::Borrowed("sampled kernel divided by the sum of its samples"),
             },
             centring,
-            orthogonalisation: if orthogonalise { "serial" } else { "none" },
+            orthogonalisation: Text::Borrowed(if orthogonalise { "serial" } else { "none" }),
             thresholds: study.thresholds,
-            diagnostics_space: DIAGNOSTICS_SPACE,
+            diagnostics_space: Text::Borrowed(DIAGNOSTICS_SPACE),
             dependency_tolerance: DEPENDENCY_TOLERANCE,
         }
     }
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct RegressorReport {
     #[serde(flatten)]
     pub regressor: Regressor,
@@ -106,12 +112,12 @@ pub struct RegressorReport {
     pub status: Status,
 }
 
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct RunReport {
     pub subject: String,
     pub run: String,
     /// The BIDS session; omitted from JSON when the study has none.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub session: Option<String>,
     pub scans: usize,
     /// Constant and cosine columns projected out.
@@ -139,26 +145,26 @@ pub struct RunReport {
     pub partition: Vec<RegressorPartition>,
     pub model_overlap: Vec<ModelOverlap>,
     /// With `--signal`: each region's variance split into model-unique and shared parts.
-    #[serde(skip_serializing_if = "Vec::is_empty")]
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub signal: Vec<RegionPartition>,
     /// Present with `--orthogonalise serial`: the same run with modulators orthogonalised.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub orthogonalised: Option<OrthogonalisedView>,
     pub flags: Vec<Flag>,
     pub status: Status,
 }
 
 /// The numbers that serial orthogonalisation changes, beside the as-written ones.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct OrthogonalisedView {
-    pub method: &'static str,
+    pub method: Text,
     /// Modulators in the order they were orthogonalised.
     pub order: Vec<String>,
     pub vif: Vec<Option<f64>>,
     pub efficiency: Vec<Option<f64>>,
     pub model_sets: Vec<ModelSet>,
     pub contrasts: Vec<Contrast>,
-    pub caution: &'static str,
+    pub caution: Text,
 }
 
 /// Said wherever orthogonalised numbers are shown.
@@ -167,7 +173,7 @@ pub const ORTHOGONALISATION_CAUTION: &str = "Serial orthogonalisation does not r
 impl OrthogonalisedView {
     pub fn new(design: &Design, diagnostics: Diagnostics) -> Self {
         OrthogonalisedView {
-            method: "serial",
+            method: Text::Borrowed("serial"),
             order: design
                 .regressors
                 .iter()
@@ -178,7 +184,7 @@ impl OrthogonalisedView {
             efficiency: diagnostics.efficiency,
             model_sets: diagnostics.model_sets,
             contrasts: diagnostics.contrasts,
-            caution: ORTHOGONALISATION_CAUTION,
+            caution: Text::Borrowed(ORTHOGONALISATION_CAUTION),
         }
     }
 }
@@ -251,7 +257,7 @@ impl RunReport {
     }
 }
 
-#[derive(Debug, Clone, Default, Serialize)]
+#[derive(Debug, Clone, Default, Serialize, Deserialize)]
 pub struct Cohort {
     pub subjects: usize,
     pub runs: usize,

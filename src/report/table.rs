@@ -52,7 +52,7 @@ pub fn render(report: &Report) -> String {
         .iter()
         .any(|r| r.flags.iter().any(|f| f.code == "shared_exceeds_unique"));
     if comparisons_unsupported {
-        let note = wrap(report.claims_note, 90, "  ");
+        let note = wrap(&report.claims_note, 90, "  ");
         text.push_str(&format!("\nComparing models\n{note}\n"));
     }
     if report.settings.orthogonalisation != "none" {

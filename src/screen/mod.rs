@@ -5,14 +5,14 @@
 //! not laws: a VIF says how much a regressor's variance is inflated, not whether an
 //! effect can be found (O'Brien 2007). Statuses follow the lab's settings.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::design::{Design, RegressorKind};
 use crate::diagnose::Diagnostics;
 use crate::flags::{Flag, Severity};
 use crate::study::Thresholds;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Status {
     Ok,
@@ -110,7 +110,7 @@ fn most_correlated(
 /// A direction of the design along which two or more regressors are nearly dependent:
 /// condition index at or above the threshold, and at least two regressors with
 /// variance-decomposition proportions ≥ 0.5 on it (Belsley, Kuh & Welsch 1980).
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct EntangledDimension {
     /// 1-based, in the order of `condition_indices`.
     pub dimension: usize,
@@ -250,7 +250,7 @@ pub fn run_status(flags: &[Flag]) -> Status {
         .unwrap_or(Status::Ok)
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SubjectSummary {
     pub subject: String,
     /// Largest VIF among onset and modulator regressors over all the participant's runs.
@@ -268,7 +268,7 @@ pub struct SubjectSummary {
 }
 
 /// A modulator's variance shared with another model.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct SharedShare {
     pub regressor: String,
     pub model: String,

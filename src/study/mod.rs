@@ -141,7 +141,7 @@ impl NuisanceSpec {
 
 /// Screening thresholds. The VIF ones are common-practice rules of thumb, not laws;
 /// the condition-index one is Belsley, Kuh & Welsch's (1980) suggestion.
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Thresholds {
     pub vif_caution: f64,
     pub vif_severe: f64,

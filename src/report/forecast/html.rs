@@ -25,7 +25,7 @@ pub fn render(report: &ForecastReport) -> String {
         page,
         "<title>{} — {} forecast</title>",
         esc(&report.forecast.name),
-        esc(report.tool.name)
+        esc(&report.tool.name)
     );
     let _ = writeln!(
         page,
@@ -43,8 +43,8 @@ pub fn render(report: &ForecastReport) -> String {
     let _ = writeln!(
         page,
         "<footer>Made by {} {} from the forecast spec above. The numbers describe designs built from simulated participants' choices, not data.</footer>",
-        esc(report.tool.name),
-        esc(report.tool.version)
+        esc(&report.tool.name),
+        esc(&report.tool.version)
     );
     page.push_str("</body>\n</html>\n");
     page
@@ -56,8 +56,8 @@ fn header(report: &ForecastReport) -> String {
     let _ = writeln!(
         html,
         "<p class=\"tool\">{} {} · forecast of the design's redundancy, before scanning</p>",
-        esc(report.tool.name),
-        esc(report.tool.version)
+        esc(&report.tool.name),
+        esc(&report.tool.version)
     );
     let _ = writeln!(html, "<h1>{}</h1>", esc(&info.name));
     let _ = writeln!(

@@ -38,7 +38,7 @@ pub(super) fn cautions(report: &Report) -> String {
     let claims = if report.claims_note.is_empty() {
         CLAIMS_NOTE
     } else {
-        report.claims_note
+        &report.claims_note
     };
     body.push_str(&prose(claims));
     if report.settings.orthogonalisation != "none" {

@@ -14,8 +14,8 @@ pub(super) fn header(report: &Report) -> String {
     let _ = writeln!(
         html,
         "<p class=\"tool\">{} {} · redundancy of the design's regressors</p>",
-        esc(report.tool.name),
-        esc(report.tool.version)
+        esc(&report.tool.name),
+        esc(&report.tool.version)
     );
     let _ = writeln!(html, "<h1>{}</h1>", esc(&report.study.name));
     let _ = writeln!(

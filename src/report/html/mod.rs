@@ -44,7 +44,7 @@ pub fn render(report: &Report) -> String {
         page,
         "<title>{} — {} report</title>",
         esc(&report.study.name),
-        esc(report.tool.name)
+        esc(&report.tool.name)
     );
     let _ = writeln!(page, "<style>{STYLE}</style>\n</head>\n<body>");
     page.push_str(&header(report));
@@ -64,8 +64,8 @@ pub fn render(report: &Report) -> String {
     let _ = writeln!(
         page,
         "<footer>Made by {} {} from the study file above. The numbers describe the design, not the data.</footer>",
-        esc(report.tool.name),
-        esc(report.tool.version)
+        esc(&report.tool.name),
+        esc(&report.tool.version)
     );
     page.push_str("</body>\n</html>\n");
     page
