@@ -239,3 +239,23 @@ fn utf16_and_latin1_tables_are_named_as_such() {
         "{err}"
     );
 }
+
+#[test]
+fn two_trials_at_one_onset_with_different_values_get_a_caution_naming_both_lines() {
+    // Line 3 and a copy of it with another prediction error, appended as line 6.
+    let trials = format!("{TRIALS}01,1,12.0,16.0,0.9\n");
+    let dir = StudyDir::new();
+    dir.file("study.toml", &good_study())
+        .file("trials.csv", &trials);
+    let report = dir.json(&[]);
+    let flags = report["runs"][0]["flags"].as_array().expect("flags");
+    let same: Vec<&serde_json::Value> =
+        flags.iter().filter(|f| f["code"] == "same_onset").collect();
+    assert_eq!(same.len(), 2, "one per event (cue and outcome): {flags:?}");
+    let message = same[0]["message"].as_str().expect("message");
+    assert!(
+        message.contains("start at 12 s (trial table lines 3 and 6)"),
+        "{message}"
+    );
+    assert_eq!(same[0]["severity"], "caution");
+}

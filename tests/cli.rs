@@ -650,6 +650,28 @@ fn signal_option_partitions_each_region_from_the_command_line() {
         .map(|r| r["region"].as_str().unwrap())
         .collect();
     assert_eq!(regions, ["left", "right"]);
+    // The bootstrap is seeded per run: the same numbers with 1 and 2 threads, every time.
+    let with_threads = |threads: &str| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_tangle"))
+            .current_dir(dir.path("."))
+            .env("RAYON_NUM_THREADS", threads)
+            .args([
+                "check",
+                "study.toml",
+                "--format",
+                "json",
+                "--resamples",
+                "50",
+            ])
+            .args(["--signal", "roi/sub-{subject}_run-{run}.tsv"])
+            .output()
+            .unwrap()
+            .stdout
+    };
+    let once = with_threads("1");
+    assert!(String::from_utf8_lossy(&once).contains("\"signal\""));
+    assert_eq!(once, with_threads("2"));
+    assert_eq!(once, with_threads("2"));
     dir.check(&["--signal", "roi/missing-{run}.tsv"])
         .code(1)
         .stderr(predicate::str::contains(

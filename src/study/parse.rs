@@ -15,6 +15,9 @@ use super::*;
 use crate::error::{Location, Problem, Result};
 
 use crate::toml_read::{Table, TomlReader, get, has_key, parse_toml};
+/// A TR below this many seconds (60 ms) is no fMRI acquisition: it is a TR written in
+/// minutes (2 s = 0.033 min).
+const MIN_PLAUSIBLE_TR: f64 = 0.06;
 
 /// Models plus the task and nuisance groups must stay within the partition's group limit.
 const MAX_MODELS: usize = crate::partition::commonality::MAX_GROUPS - 2;
@@ -149,6 +152,17 @@ impl Reader<'_> {
                     span,
                     format!("tr = {tr} seconds is implausible"),
                     "tr is in seconds (e.g. 2.0), not milliseconds".into(),
+                );
+                None
+            }
+            Some((tr, span)) if tr < MIN_PLAUSIBLE_TR => {
+                self.problem_with_hint(
+                    span,
+                    format!("tr = {tr} seconds is shorter than any fMRI acquisition"),
+                    format!(
+                        "tr is in seconds (e.g. 2.0), not minutes: {tr} minutes would be {} s",
+                        tr * 60.0
+                    ),
                 );
                 None
             }

@@ -5,6 +5,7 @@ use foldhash::{HashMap, HashMapExt};
 
 use super::{Row, ScanTable, Table, check_label};
 use crate::error::{Error, Location, Problem, Problems, Result};
+use crate::flags::{Flag, Severity};
 use crate::study::{Duration, Study};
 
 /// Everything the design builder needs to know about one run.
@@ -263,9 +264,46 @@ impl<'s> RunCollector<'s> {
                 run,
                 &mut self.problems,
             );
+            same_onset_flags(run);
             run.shrink_to_fit();
         }
         self.problems.finish(self.runs)
+    }
+}
+
+/// A caution where two trials of one event start at the same time: their regressors add
+/// up as one trial of twice the height (and their modulator values add), which is a row
+/// exported twice with different values more often than a design.
+fn same_onset_flags(run: &mut RunTrials) {
+    for event in &run.events {
+        let mut starts: Vec<(f64, usize)> = event
+            .onsets
+            .iter()
+            .copied()
+            .zip(event.lines.iter().copied())
+            .collect();
+        starts.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        let pairs: Vec<(f64, usize, usize)> = starts
+            .windows(2)
+            .filter(|pair| pair[0].0 == pair[1].0)
+            .map(|pair| (pair[0].0, pair[0].1, pair[1].1))
+            .collect();
+        let Some(&(onset, first, second)) = pairs.first() else {
+            continue;
+        };
+        let more = match pairs.len() {
+            1 => String::new(),
+            n => format!(" ({n} pairs in all)"),
+        };
+        run.flags.push(Flag::new(
+            Severity::Caution,
+            "same_onset",
+            vec![event.name.clone()],
+            format!(
+                "two trials of event \"{}\" start at {onset} s (trial table lines {first} and {second}){more}: they add up as one trial of twice the height; if a row was exported twice with different values, remove one",
+                event.name
+            ),
+        ));
     }
 }
 
@@ -289,6 +327,10 @@ fn seconds(value: f64) -> String {
         value.to_string()
     }
 }
+
+/// Onsets are taken for minutes only when a run has at least this many trials (a few
+/// early events in a long run are a real design).
+const MIN_TRIALS_FOR_UNITS: usize = 10;
 
 /// At most this many implausible times are listed per run.
 const MAX_TIME_PROBLEMS: usize = 5;
@@ -328,6 +370,29 @@ fn check_times(path: &std::path::Path, tr: f64, run: &RunTrials, problems: &mut 
                     ),
                 )
                 .with_hint("onsets and durations are in seconds: divide those columns by 1000 (or check tr and scans)"),
+            );
+            return;
+        }
+    }
+    let count = trials().count();
+    if let Some((onset, _, line)) = latest {
+        if count >= MIN_TRIALS_FOR_UNITS
+            && onset > 0.0
+            && onset <= length / 30.0
+            && (0.5 * length..=1.5 * length).contains(&(onset * 60.0))
+        {
+            problems.push(
+                Problem::new(
+                    at(line),
+                    format!(
+                        "subject {} run {}: onsets look like minutes: all {count} trials start in the first {} s of a {length} s run ({} scans × {tr} s), and the latest times 60 is about the run's length",
+                        run.subject,
+                        run.run,
+                        seconds(onset),
+                        run.scans
+                    ),
+                )
+                .with_hint("onsets and durations are in seconds: multiply those columns by 60 (or check tr and scans)"),
             );
             return;
         }
