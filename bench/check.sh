@@ -30,6 +30,10 @@ for n in "${sizes[@]+"${sizes[@]}"}"; do
         "$(( $(stat -c %s "$trials") / 1000000 ))" "$(printf '%s\n' "${times[@]}" | median)" \
         "$(printf '%.2f ' "${times[@]}" | sed 's/ $//')" "$(printf '%s\n' "${read_only[@]}" | median)" "$((peak / 1024))"
 done
+python3 -c "import numpy, pandas, statsmodels" 2>/dev/null || {
+    echo "the baseline needs numpy, pandas and statsmodels: python3 -m pip install -r tests/reference/requirements.txt" >&2
+    exit 1
+}
 study=target/bench/cohort-200/1-as-planned/study.toml
 "$binary" check "$study" --format json --out target/bench/tangle-200.json
 tangle_time=$(seconds "$binary" check "$study" --format json)
