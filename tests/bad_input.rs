@@ -259,3 +259,44 @@ fn two_trials_at_one_onset_with_different_values_get_a_caution_naming_both_lines
     );
     assert_eq!(same[0]["severity"], "caution");
 }
+
+#[test]
+fn a_run_with_a_single_trial_gives_nulls_with_flags_never_nan() {
+    let dir = StudyDir::new();
+    dir.file("study.toml", &good_study()).file(
+        "trials.csv",
+        "subject,run,cue_onset,outcome_onset,pe\n01,1,2.0,5.5,0.3\n",
+    );
+    let output = dir.check(&["--format", "json"]).get_output().clone();
+    let text = String::from_utf8(output.stdout).unwrap();
+    assert!(
+        !text.contains("NaN") && !text.contains("Infinity"),
+        "{text}"
+    );
+    let report: serde_json::Value = serde_json::from_str(&text).expect("JSON");
+    let run = &report["runs"][0];
+    let names: Vec<&str> = run["regressors"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["name"].as_str().unwrap())
+        .collect();
+    let pe = names
+        .iter()
+        .position(|n| n.ends_with("pe"))
+        .expect("the modulator");
+    // One trial: the centred modulator is all zero, so it has no VIF, and a flag says why.
+    assert!(run["vif"][pe].is_null(), "{}", run["vif"]);
+    let codes: Vec<&str> = run["flags"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["code"].as_str().unwrap())
+        .collect();
+    assert!(!codes.is_empty(), "the null VIF needs a flag saying why");
+    // The two onsets are defined: two impulses 3.5 s apart, correlated but not collinear.
+    for event in 0..2 {
+        let vif = run["vif"][event].as_f64().expect("an onset VIF");
+        assert!(vif >= 1.0 && vif.is_finite(), "{vif}");
+    }
+}

@@ -291,9 +291,12 @@ fn priors(
             priors.push(None);
             continue;
         };
-        let prior = match value.get_ref() {
-            DeValue::Table(family) if family.len() == 1 => {
-                let (key, numbers) = family.iter().next().expect("one entry");
+        let only_entry = match value.get_ref() {
+            DeValue::Table(family) if family.len() == 1 => family.iter().next(),
+            _ => None,
+        };
+        let prior = match (value.get_ref(), only_entry) {
+            (_, Some((key, numbers))) => {
                 let what = format!("prior of {}", info.name);
                 r.numbers_value(numbers, &what)
                     .and_then(|n| match Prior::new(key.get_ref(), &n) {
@@ -304,7 +307,7 @@ fn priors(
                         }
                     })
             }
-            DeValue::Integer(_) | DeValue::Float(_) => {
+            (DeValue::Integer(_) | DeValue::Float(_), None) => {
                 r.number_value(value, info.name).map(Prior::Fixed)
             }
             _ => {
