@@ -13,7 +13,7 @@ use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
 use tangle::partition::signal::BootstrapSettings;
-use tangle::report::json::{JsonStream, render_run};
+use tangle::report::json::stream_check;
 use tangle::report::{self, Report};
 use tangle::screen::Status;
 
@@ -145,55 +145,43 @@ fn check_streaming(study: &Path, output: &OutputArgs) -> tangle::Result<ExitCode
     let text = tangle::files::read_text(&DiskFiles, study)?;
     let study = tangle::study::parse_study(study, &text)?;
     let prepared = prepare(&DiskFiles, &study, options(output))?;
-    let head = prepared.head();
-    let mut summaries = None;
-    let mut failure = None;
+    // The writers take an I/O callback: the check's own outcome is kept beside it.
+    let mut outcome = None;
     let mut write = |out: &mut dyn std::io::Write| -> std::io::Result<()> {
-        let mut stream = JsonStream::begin(out, &head)?;
-        let output_error = |err| Error::Output {
-            path: "the report".into(),
-            source: err,
-        };
-        let result =
-            prepared.run_all_rendered(&DiskFiles, &|run| render_run(&run), &mut |rendered| {
-                stream
-                    .rendered_run(&rendered.map_err(output_error)?)
-                    .map_err(output_error)
-            });
-        match result {
-            Ok(done) => {
-                stream.finish(&done)?;
-                summaries = Some(done);
-                Ok(())
-            }
-            Err(err) => {
-                failure = Some(err);
-                Err(std::io::Error::other("the check failed"))
-            }
+        let result = stream_check(&prepared, &DiskFiles, out);
+        let failed = result.is_err();
+        outcome = Some(result);
+        if failed {
+            Err(std::io::Error::other("the check failed"))
+        } else {
+            Ok(())
         }
     };
     let written = match &output.out {
         Some(path) => tangle::output::write_atomically_with(path, &mut write),
         None => {
-            let stdout = std::io::stdout().lock();
-            let mut buffered = std::io::BufWriter::new(stdout);
-            match write(&mut buffered) {
-                Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe && failure.is_none() => {
-                    Err(Error::Output {
-                        path: "standard output".into(),
-                        source: err,
-                    })
-                }
-                _ => Ok(()),
-            }
+            let mut buffered = std::io::BufWriter::new(std::io::stdout().lock());
+            write(&mut buffered).map_err(|source| Error::Output {
+                path: "standard output".into(),
+                source,
+            })
         }
     };
-    if let Some(err) = failure {
-        return Err(err);
-    }
+    let summaries = match outcome {
+        Some(Err(Error::Output { source, .. }))
+            if source.kind() == std::io::ErrorKind::BrokenPipe && output.out.is_none() =>
+        {
+            return Ok(ExitCode::SUCCESS); // e.g. piped into `head`
+        }
+        Some(result) => result?,
+        None => {
+            return Err(written
+                .err()
+                .unwrap_or_else(|| Error::Internal("the check did not run".into())));
+        }
+    };
     written?;
-    let subjects = summaries.map(|s| s.subjects).unwrap_or_default();
-    Ok(fail_on(&subjects, output))
+    Ok(fail_on(&summaries.subjects, output))
 }
 
 fn merge(

@@ -9,7 +9,9 @@ use std::io::Write;
 use serde::Serialize;
 
 use super::Report;
-use crate::check::{ReportHead, Summaries};
+use crate::check::{Prepared, ReportHead, Summaries};
+use crate::error::{Error, Result};
+use crate::files::InputFiles;
 use crate::report::model::RunReport;
 use crate::screen::CLAIMS_NOTE;
 
@@ -79,6 +81,29 @@ impl<W: Write> JsonStream<W> {
         write!(self.out, "\n  \"{key}\": ")?;
         write_indented(&mut self.out, value, b"\n  ")
     }
+}
+
+/// `check --format json` of a prepared study: every run is checked and written to `out`
+/// as its batch finishes (rendered on the worker threads), so the whole report is never
+/// held in memory. Returns the cohort views; an error of the check itself is returned as
+/// is, a failed write as [`Error::Output`].
+pub fn stream_check(
+    prepared: &Prepared,
+    files: &dyn InputFiles,
+    out: &mut dyn Write,
+) -> Result<Summaries> {
+    let output_error = |source| Error::Output {
+        path: "the report".into(),
+        source,
+    };
+    let mut stream = JsonStream::begin(out, &prepared.head()).map_err(output_error)?;
+    let summaries = prepared.run_all_rendered(files, &|run| render_run(&run), &mut |rendered| {
+        stream
+            .rendered_run(&rendered.map_err(output_error)?)
+            .map_err(output_error)
+    })?;
+    stream.finish(&summaries).map_err(output_error)?;
+    Ok(summaries)
 }
 
 /// One run's JSON as it sits in the report's list of runs.
