@@ -36,7 +36,8 @@ python3 -c "import numpy, pandas, statsmodels" 2>/dev/null || {
 }
 study=target/bench/cohort-200/1-as-planned/study.toml
 "$binary" check "$study" --format json --out target/bench/tangle-200.json
-tangle_time=$(seconds "$binary" check "$study" --format json)
+tangle_times=(); for _ in $(seq "$repeats"); do tangle_times+=("$(seconds "$binary" check "$study" --format json)"); done
+tangle_time=$(printf '%s\n' "${tangle_times[@]}" | median)   # median of the repeats
 python_time=$(seconds python3 bench/baseline.py "$study" --vif-out target/bench/baseline-200.json)
 python3 - "$tangle_time" "$python_time" <<'PY'
 import json, sys
@@ -62,7 +63,7 @@ for a, b in zip(ours, theirs):
         worst = max(worst, rel)
         if x < 1000:
             worst_moderate = max(worst_moderate, rel)
-print(f"200 participants, {len(ours)} runs: tangle {t:.2f} s, Python baseline {p:.1f} s, "
+print(f"200 participants, {len(ours)} runs: tangle {t:.2f} s (median), Python baseline {p:.1f} s, "
       f"ratio {p / t:.0f}x")
 print(f"VIFs compared: {compared}; largest relative difference {worst:.2e} overall, "
       f"{worst_moderate:.2e} where VIF < 1000; {undefined} VIFs null in tangle (exact dependency); "
