@@ -63,10 +63,25 @@ for a, b in zip(ours, theirs):
         worst = max(worst, rel)
         if x < 1000:
             worst_moderate = max(worst_moderate, rel)
+# Commonality components: tangle's against one statsmodels OLS per subset of groups.
+parts, worst_part = 0, 0.0
+for a, b in zip(ours, theirs):
+    if any(f["code"] == "exact_dependency" for f in a["flags"]):
+        continue
+    for part in a["partition"]:
+        theirs_part = b["partition"].get(part["regressor"])
+        if theirs_part is None or part["r2"] is None:
+            continue
+        for c in part["components"]:
+            key = "+".join(c["groups"])
+            if key in theirs_part["components"]:
+                parts += 1
+                worst_part = max(worst_part, abs(c["share"] - theirs_part["components"][key]))
 print(f"200 participants, {len(ours)} runs: tangle {t:.2f} s (median), Python baseline {p:.1f} s, "
       f"ratio {p / t:.0f}x")
 print(f"VIFs compared: {compared}; largest relative difference {worst:.2e} overall, "
       f"{worst_moderate:.2e} where VIF < 1000; {undefined} VIFs null in tangle (exact dependency); "
       f"runs with an exact dependency not compared: {', '.join(skipped_runs) or 'none'}")
+print(f"commonality components compared: {parts}; largest absolute difference {worst_part:.1e}")
 PY
 echo "$(nproc) cores; $(uname -sr)"

@@ -337,7 +337,7 @@ fn groups_without(design: &Design, core: &Core, left_out: Option<usize>) -> Vec<
 
 fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
     let kept = kept_matrix(core);
-    let gram = kept.tr_mul(&kept);
+    let triangle = partition::gram::Triangle::of(&kept);
     design
         .regressors
         .iter()
@@ -348,7 +348,7 @@ fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
                 return RegressorPartition::undefined(&regressor.name, regressor.model.clone());
             };
             let groups = groups_without(design, core, Some(index));
-            match partition::partition(&gram, position, &groups) {
+            match partition::partition(&triangle, position, &groups) {
                 Some((r2, components)) => RegressorPartition {
                     regressor: regressor.name.clone(),
                     model: regressor.model.clone(),

@@ -74,9 +74,9 @@ pub struct Group {
 }
 
 /// Commonality components of column `target`'s R² on the union of `groups`, all subset
-/// R² taken from blocks of `gram`. `None` if a block is singular.
+/// R² taken from `fit` (a Gram matrix or the triangle of a QR). `None` if predictors are dependent.
 pub fn partition(
-    gram: &DMatrix<f64>,
+    fit: &dyn gram::SubsetFit,
     target: usize,
     groups: &[Group],
 ) -> Option<(f64, Vec<Component>)> {
@@ -94,7 +94,7 @@ pub fn partition(
     let all: u32 = (1u32 << groups.len()) - 1;
     let mut r2_cache = vec![None; all as usize + 1];
     for mask in 1..=all {
-        r2_cache[mask as usize] = Some(gram::r_squared(gram, target, &union(mask))?);
+        r2_cache[mask as usize] = Some(fit.r_squared(target, &union(mask))?);
     }
     let full = if groups.is_empty() {
         0.0
@@ -165,5 +165,5 @@ pub fn partition_with_intercept(
         })
         .collect();
     let matrix = DMatrix::from_fn(rows, unit.len(), |r, c| unit[c][r]);
-    partition(&(matrix.transpose() * &matrix), 0, &named)
+    partition(&gram::Gram(&matrix.tr_mul(&matrix)), 0, &named)
 }
