@@ -529,3 +529,26 @@ mod conditioning_reference {
         assert_eq!(result.correlation[0][1], None);
     }
 }
+
+/// A set whose two columns nearly coincide, orthogonal to the rest: its GVIF is exactly 1
+/// however badly conditioned the set is inside (det R = det R_set · det R_rest). With
+/// δ = 1e-5 the set's correlation matrix has condition number ~4e10: determinants of
+/// correlation blocks lose about that many digits' worth; the triangle of a QR keeps them.
+#[test]
+fn gvif_of_a_set_orthogonal_to_the_rest_is_one_even_when_the_set_is_nearly_collinear() {
+    use tangle::diagnose::gvif_with_intercept;
+    let n = 60;
+    // Cosines of the DCT-II basis: orthogonal and zero-mean for k ≥ 1.
+    let cosine = |k: usize| -> Vec<f64> {
+        (0..n)
+            .map(|i| (std::f64::consts::PI * k as f64 * (2 * i + 1) as f64 / (2 * n) as f64).cos())
+            .collect()
+    };
+    let (u1, u2, u3, u4) = (cosine(1), cosine(2), cosine(3), cosine(4));
+    let delta = 1e-5;
+    let near: Vec<f64> = u1.iter().zip(&u2).map(|(a, b)| a + delta * b).collect();
+    let other: Vec<f64> = u3.iter().zip(&u4).map(|(a, b)| a + 0.5 * b).collect();
+    let columns = vec![u1, near, u3, other];
+    let gvif = gvif_with_intercept(&columns, &[0, 1]).expect("defined");
+    assert!((gvif - 1.0).abs() < 1e-9, "GVIF {gvif}");
+}

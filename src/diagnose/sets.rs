@@ -20,16 +20,26 @@ pub struct ModelSet {
     pub gvif_scaled: Option<f64>,
 }
 
-/// ln det of the principal sub-matrix of R = UᵀU on `positions` (Cholesky).
-fn log_determinant(gram: &DMatrix<f64>, positions: &[usize]) -> Option<f64> {
+/// ln det of the principal sub-matrix on `positions` of R = UᵀU, U the unit columns:
+/// det(U_Pᵀ U_P) = Π r_kk² for the triangle of a Householder QR of U_P, which keeps the
+/// digits that forming U_Pᵀ U_P (and its Cholesky factor) would lose when U_P is badly
+/// conditioned. `None` when the columns are dependent.
+fn log_determinant(columns: &DMatrix<f64>, positions: &[usize]) -> Option<f64> {
     if positions.is_empty() {
         return Some(0.0);
     }
-    let block = DMatrix::from_fn(positions.len(), positions.len(), |i, j| {
-        gram[(positions[i], positions[j])]
+    let block = DMatrix::from_fn(columns.nrows(), positions.len(), |row, col| {
+        columns[(row, positions[col])]
     });
-    let cholesky = block.cholesky()?;
-    Some(cholesky.l().diagonal().iter().map(|d| 2.0 * d.ln()).sum())
+    if block.nrows() < block.ncols() {
+        return None;
+    }
+    let diagonal = block.qr().r().diagonal();
+    let logs: Option<Vec<f64>> = diagonal
+        .iter()
+        .map(|d| (d.abs() > 0.0).then(|| 2.0 * d.abs().ln()))
+        .collect();
+    logs.map(|logs| logs.iter().sum())
 }
 
 /// GVIF of the kept columns at `set` (positions among `spectrum.kept`).
@@ -41,12 +51,11 @@ pub(crate) fn generalized_vif(
     let kept = DMatrix::from_fn(unit.matrix.nrows(), spectrum.kept.len(), |row, col| {
         unit.matrix[(row, spectrum.kept[col])]
     });
-    let gram = kept.tr_mul(&kept);
     let rest: Vec<usize> = (0..spectrum.kept.len())
         .filter(|p| !set.contains(p))
         .collect();
     let log_gvif =
-        log_determinant(&gram, set)? + log_determinant(&gram, &rest)? - spectrum.log_determinant();
+        log_determinant(&kept, set)? + log_determinant(&kept, &rest)? - spectrum.log_determinant();
     let gvif = log_gvif.exp();
     gvif.is_finite().then_some(gvif.max(1.0))
 }
