@@ -23,8 +23,8 @@ use crate::screen::{
 };
 use crate::study::{NuisanceSpec, Study, parse_study};
 use crate::trials::{
-    NuisanceTable, PerScanTable, RunCollector, RunTrials, ScanTable, Table, fill_template,
-    read_nuisance, read_per_scan,
+    NuisanceTable, PerScanTable, ROWS_PER_CHUNK, RunTrials, ScanTable, fill_template,
+    read_nuisance, read_per_scan, read_runs,
 };
 
 #[derive(Debug, Clone)]
@@ -242,7 +242,10 @@ pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> 
         Some(source) => crate::bids::collect_bids_runs(files, study, source)?,
         None => {
             let scans = ScanTable::load(files, &study.acquisition.scans)?;
-            (study.clone(), read_trials(files, study, &scans)?)
+            (
+                study.clone(),
+                read_runs(files, study, &scans, ROWS_PER_CHUNK)?,
+            )
         }
     };
     let runs = match &options.subjects {
@@ -268,52 +271,6 @@ pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> 
         runs,
         settings,
         options,
-    })
-}
-
-/// Rows of the trial table held at once while it is read.
-const ROWS_PER_CHUNK: usize = 16 * 1024;
-
-/// The runs of a flat trial table, read a chunk at a time: only the numbers the study
-/// uses are kept, never the whole text. Parsing the text (this thread) and turning rows
-/// into runs (a second thread) overlap, a few chunks apart.
-fn read_trials(files: &dyn InputFiles, study: &Study, scans: &ScanTable) -> Result<Vec<RunTrials>> {
-    let (send, receive) = std::sync::mpsc::sync_channel::<Table>(2);
-    std::thread::scope(|scope| {
-        let collecting = scope.spawn(move || -> Result<Vec<RunTrials>> {
-            let mut collector = None;
-            for chunk in receive {
-                let collector = match &mut collector {
-                    Some(collector) => collector,
-                    None => collector.insert(RunCollector::new(study, &chunk, scans)?),
-                };
-                collector.add(&chunk);
-            }
-            match collector {
-                Some(collector) => collector.finish(),
-                None => Err(Error::Internal(
-                    "the trial table was read but gave no rows".into(),
-                )),
-            }
-        });
-        // A send fails only once the collector has stopped on an error of its own.
-        let mut collector_stopped = false;
-        let read = Table::read_in_chunks(files, &study.trials.file, ROWS_PER_CHUNK, &mut |chunk| {
-            if send.send(chunk).is_err() {
-                collector_stopped = true;
-                return Err(Error::Internal("the run collector stopped".into()));
-            }
-            Ok(())
-        });
-        drop(send);
-        let collected = collecting
-            .join()
-            .unwrap_or_else(|_| Err(Error::Internal("the run collector panicked".into())));
-        match read {
-            // The table's own problems come first, as when the rows are read in one pass.
-            Err(err) if !collector_stopped => Err(err),
-            _ => collected,
-        }
     })
 }
 

@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{StudyDir, study_toml};
+use common::{StudyDir, regressor_names, study_toml};
 
 const TRIALS: &str = "subject,run,cue_onset,outcome_onset,pe\n01,1,2.0,5.5,0.3\n01,1,12.0,16.0,-0.2\n01,1,22.0,24.5,0.5\n01,1,31.0,36.0,0.1\n";
 const MODEL: &str =
@@ -275,13 +275,7 @@ fn a_run_with_a_single_trial_gives_nulls_with_flags_never_nan() {
     );
     let report: serde_json::Value = serde_json::from_str(&text).expect("JSON");
     let run = &report["runs"][0];
-    let names: Vec<&str> = run["regressors"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|r| r["name"].as_str().unwrap())
-        .collect();
-    let pe = names
+    let pe = regressor_names(run)
         .iter()
         .position(|n| n.ends_with("pe"))
         .expect("the modulator");

@@ -8,28 +8,22 @@ use std::path::Path;
 use common::StudyDir;
 use tangle::files::{DiskFiles, read_text};
 use tangle::study::{Study, parse_study};
-use tangle::trials::{RunCollector, RunTrials, ScanTable, Table, collect_runs};
+use tangle::trials::{RunTrials, ScanTable, Table, collect_runs, read_runs};
 
 fn study(path: &Path) -> Study {
     parse_study(path, &read_text(&DiskFiles, path).unwrap()).unwrap()
 }
 
 fn in_chunks(study: &Study, rows: usize) -> tangle::Result<Vec<RunTrials>> {
-    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
-    let mut collector = None;
     let mut chunks = 0;
     Table::read_in_chunks(&DiskFiles, &study.trials.file, rows, &mut |chunk| {
         assert!(chunk.row_count() <= rows);
         chunks += 1;
-        let collector = match &mut collector {
-            Some(collector) => collector,
-            None => collector.insert(RunCollector::new(study, &chunk, &scans)?),
-        };
-        collector.add(&chunk);
         Ok(())
     })?;
     assert!(chunks > 1, "the table should span several chunks");
-    collector.unwrap().finish()
+    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
+    read_runs(&DiskFiles, study, &scans, rows)
 }
 
 #[test]

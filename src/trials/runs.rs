@@ -153,10 +153,10 @@ impl<'s> RunCollector<'s> {
                 });
             }
         }
-        let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
-            return Err(problems.finish(()).unwrap_err());
-        };
         problems.finish(())?;
+        let (Some(subject_column), Some(run_column)) = (subject_column, run_column) else {
+            return Err(Error::Internal("a missing column was not reported".into()));
+        };
         Ok(RunCollector {
             study,
             scans,

@@ -81,12 +81,8 @@ const MAX_TABLE_BYTES: usize = u32::MAX as usize;
 impl Table {
     /// The whole table.
     pub fn read(files: &dyn InputFiles, path: &Path) -> Result<Table> {
-        let mut whole = None;
-        Table::read_in_chunks(files, path, usize::MAX, &mut |table| {
-            whole = Some(table);
-            Ok(())
-        })?;
-        whole.ok_or_else(|| Error::Internal("a table was read but not kept".into()))
+        let input = files.open(path).map_err(|err| cannot_read(path, &err))?;
+        read_whole(path, input)
     }
 
     /// The table as consecutive tables of at most `rows` rows each, handed to `each`
@@ -105,12 +101,7 @@ impl Table {
 
     /// A table from its text (for tests and embedded files).
     pub fn parse(path: &Path, text: &str) -> Result<Table> {
-        let mut whole = None;
-        read_stream(path, text.as_bytes(), usize::MAX, &mut |table| {
-            whole = Some(table);
-            Ok(())
-        })?;
-        whole.ok_or_else(|| Error::Internal("a table was read but not kept".into()))
+        read_whole(path, text.as_bytes())
     }
 
     fn empty(path: &Path, headers: Vec<String>) -> Table {
@@ -349,6 +340,16 @@ fn not_text(path: &Path, line: usize, binary: bool) -> Error {
     } else {
         crate::files::not_utf8_problem(path, line).into()
     }
+}
+
+/// The table as one chunk.
+fn read_whole(path: &Path, input: impl std::io::Read) -> Result<Table> {
+    let mut whole = None;
+    read_stream(path, input, usize::MAX, &mut |table| {
+        whole = Some(table);
+        Ok(())
+    })?;
+    whole.ok_or_else(|| Error::Internal("a table was read but not kept".into()))
 }
 
 fn read_stream(
