@@ -21,6 +21,7 @@ use nalgebra::DMatrix;
 
 use crate::design::{Design, RegressorKind};
 use crate::flags::{Flag, Severity};
+use crate::partition::gram::Triangle;
 use crate::partition::{self, Group, ModelOverlap, RegressorPartition};
 
 /// A column whose filtered norm is below this fraction of its sampled norm lies
@@ -67,6 +68,8 @@ struct Core {
     dependencies: Vec<Dependency>,
     spectrum: Spectrum,
     vif: Vec<Option<f64>>,
+    /// The triangle of a QR of the kept unit columns: subset R² and block determinants.
+    triangle: Triangle,
 }
 
 fn core(names: &[&str], columns: &[Vec<f64>], active: &[usize]) -> Core {
@@ -74,7 +77,11 @@ fn core(names: &[&str], columns: &[Vec<f64>], active: &[usize]) -> Core {
     let dependencies = dependencies::find(names, &unit);
     let spectrum = Spectrum::new(&unit, &dependencies);
     let vif = vif::variance_inflation(columns.len(), &unit, &spectrum, &dependencies);
+    let kept = DMatrix::from_fn(unit.matrix.nrows(), spectrum.kept.len(), |row, col| {
+        unit.matrix[(row, spectrum.kept[col])]
+    });
     Core {
+        triangle: Triangle::of(&kept),
         unit,
         dependencies,
         spectrum,
@@ -173,7 +180,7 @@ pub fn gvif_with_intercept(columns: &[Vec<f64>], set: &[usize]) -> Option<f64> {
         .iter()
         .map(|&j| core.unit.indices.iter().position(|&i| i == j))
         .collect::<Option<_>>()?;
-    sets::generalized_vif(&core.unit, &core.spectrum, &positions)
+    sets::generalized_vif(&core.triangle, &core.spectrum, &positions)
 }
 
 /// Efficiency and variance inflation of the difference of columns `a` and `b` in a
@@ -229,7 +236,7 @@ fn model_sets(design: &Design, core: &Core) -> Vec<ModelSet> {
                 members.iter().map(|&i| kept_position(core, i)).collect();
             let gvif = match positions {
                 Some(positions) if !undefined && !positions.is_empty() => {
-                    sets::generalized_vif(&core.unit, &core.spectrum, &positions)
+                    sets::generalized_vif(&core.triangle, &core.spectrum, &positions)
                 }
                 _ => None,
             };
@@ -336,8 +343,6 @@ fn groups_without(design: &Design, core: &Core, left_out: Option<usize>) -> Vec<
 }
 
 fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
-    let kept = kept_matrix(core);
-    let triangle = partition::gram::Triangle::of(&kept);
     design
         .regressors
         .iter()
@@ -348,7 +353,7 @@ fn design_partition(design: &Design, core: &Core) -> Vec<RegressorPartition> {
                 return RegressorPartition::undefined(&regressor.name, regressor.model.clone());
             };
             let groups = groups_without(design, core, Some(index));
-            match partition::partition(&triangle, position, &groups) {
+            match partition::partition(&core.triangle, position, &groups) {
                 Some((r2, components)) => RegressorPartition {
                     regressor: regressor.name.clone(),
                     model: regressor.model.clone(),

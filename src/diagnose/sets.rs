@@ -4,10 +4,10 @@
 //! compares sets of different sizes on the scale of a standard error (for one column it
 //! is √VIF). Here each model's parametric modulators form a set.
 
-use nalgebra::DMatrix;
 use serde::{Deserialize, Serialize};
 
-use super::{Spectrum, UnitColumns};
+use super::Spectrum;
+use crate::partition::gram::Triangle;
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ModelSet {
@@ -20,42 +20,19 @@ pub struct ModelSet {
     pub gvif_scaled: Option<f64>,
 }
 
-/// ln det of the principal sub-matrix on `positions` of R = UᵀU, U the unit columns:
-/// det(U_Pᵀ U_P) = Π r_kk² for the triangle of a Householder QR of U_P, which keeps the
-/// digits that forming U_Pᵀ U_P (and its Cholesky factor) would lose when U_P is badly
-/// conditioned. `None` when the columns are dependent.
-fn log_determinant(columns: &DMatrix<f64>, positions: &[usize]) -> Option<f64> {
-    if positions.is_empty() {
-        return Some(0.0);
-    }
-    let block = DMatrix::from_fn(columns.nrows(), positions.len(), |row, col| {
-        columns[(row, positions[col])]
-    });
-    if block.nrows() < block.ncols() {
-        return None;
-    }
-    let diagonal = block.qr().r().diagonal();
-    let logs: Option<Vec<f64>> = diagonal
-        .iter()
-        .map(|d| (d.abs() > 0.0).then(|| 2.0 * d.abs().ln()))
-        .collect();
-    logs.map(|logs| logs.iter().sum())
-}
-
-/// GVIF of the kept columns at `set` (positions among `spectrum.kept`).
+/// GVIF of the kept columns at `set` (positions among `spectrum.kept`). Each block
+/// determinant comes from the triangle of a QR (Π r_kk²), which keeps the digits that
+/// factorising blocks of the correlation matrix would lose in badly conditioned designs.
 pub(crate) fn generalized_vif(
-    unit: &UnitColumns,
+    triangle: &Triangle,
     spectrum: &Spectrum,
     set: &[usize],
 ) -> Option<f64> {
-    let kept = DMatrix::from_fn(unit.matrix.nrows(), spectrum.kept.len(), |row, col| {
-        unit.matrix[(row, spectrum.kept[col])]
-    });
     let rest: Vec<usize> = (0..spectrum.kept.len())
         .filter(|p| !set.contains(p))
         .collect();
-    let log_gvif =
-        log_determinant(&kept, set)? + log_determinant(&kept, &rest)? - spectrum.log_determinant();
+    let log_gvif = triangle.log_determinant(set)? + triangle.log_determinant(&rest)?
+        - spectrum.log_determinant();
     let gvif = log_gvif.exp();
     gvif.is_finite().then_some(gvif.max(1.0))
 }

@@ -41,6 +41,24 @@ impl Triangle {
     }
 }
 
+impl Triangle {
+    /// ln det(X_Pᵀ X_P) of the columns `positions`: Π r_kk² of a QR of R's columns
+    /// there (X_Pᵀ X_P = R_Pᵀ R_P). `None` when they are dependent.
+    pub fn log_determinant(&self, positions: &[usize]) -> Option<f64> {
+        if positions.is_empty() {
+            return Some(0.0);
+        }
+        if positions.len() > self.0.nrows() {
+            return None;
+        }
+        let block = DMatrix::from_fn(self.0.nrows(), positions.len(), |i, j| {
+            self.0[(i, positions[j])]
+        });
+        let diagonal = block.qr().r().diagonal().abs();
+        (diagonal.min() > 0.0).then(|| diagonal.iter().map(|d| 2.0 * d.ln()).sum())
+    }
+}
+
 impl SubsetFit for Triangle {
     fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64> {
         if predictors.is_empty() {
