@@ -1,7 +1,7 @@
 //! Reading the per-trial reward schedule files a forecast spec names: one row per trial
 //! of a run, one column `p1`, `p2`, … per option, each a probability in [0, 1].
 
-use crate::error::{Problem, Problems, Result};
+use crate::error::{Error, Problem, Problems, Result};
 use crate::files::InputFiles;
 use crate::forecast::spec::{ForecastSpec, Rewards};
 use crate::trials::Table;
@@ -42,8 +42,12 @@ fn read_schedule(
         })
         .collect();
     let columns: Option<Vec<usize>> = columns.into_iter().collect();
+    // A missing column was kept as a problem: finishing reports it.
     let Some(columns) = columns else {
-        return Err(problems.finish(()).unwrap_err());
+        problems.finish(())?;
+        return Err(Error::Internal(
+            "a missing schedule column was not reported".into(),
+        ));
     };
     if table.row_count() != trials {
         problems.push(
