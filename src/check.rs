@@ -5,22 +5,24 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
+use crate::cohort::partition as cohort;
+use crate::cohort::{CohortShare, ParticipantShare};
 use crate::design::orthogonalise;
 use crate::design::{DesignSettings, build_design};
 use crate::diagnose::diagnose;
+use crate::diagnose::partition;
+use crate::diagnose::partition::RegressorPartition;
 use crate::error::{Error, Problems, Result};
 use crate::files::{InputFiles, read_text};
-use crate::partition::RegressorPartition;
-use crate::partition::cohort::{CohortShare, ParticipantShare};
-use crate::partition::signal::BootstrapSettings;
-use crate::partition::{self, cohort, signal};
-use crate::report::model::{
+use crate::report::{
     Cohort, OrthogonalisedView, Report, RunReport, RunScreening, Settings, StudyInfo, ToolInfo,
 };
 use crate::screen::{
     CLAIMS_NOTE, RunOutcome, Status, SubjectSummary, claim_flags, entangled_dimensions,
     entanglement_flags, run_status, summarise_subjects, vif_flags,
 };
+use crate::signal;
+use crate::signal::BootstrapSettings;
 use crate::study::{NuisanceSpec, Study, parse_study};
 use crate::trials::{
     NuisanceTable, PerScanTable, ROWS_PER_CHUNK, RunTrials, ScanTable, fill_template,
@@ -142,7 +144,7 @@ impl ReportHead {
             cohort: summaries.cohort,
             subject_partition: summaries.subject_partition,
             cohort_partition: summaries.cohort_partition,
-            claims_note: crate::report::model::Text::Borrowed(CLAIMS_NOTE),
+            claims_note: crate::report::Text::Borrowed(CLAIMS_NOTE),
         }
     }
 }

@@ -12,10 +12,11 @@ use tangle::cli::{Cli, Command, FailOn, ForecastFormat, Format, Orthogonalise, O
 use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
-use tangle::partition::signal::BootstrapSettings;
-use tangle::report::json::stream_check;
-use tangle::report::{self, Report};
+use tangle::render;
+use tangle::render::json::stream_check;
+use tangle::report::Report;
 use tangle::screen::Status;
+use tangle::signal::BootstrapSettings;
 
 /// A whole-cohort check makes millions of small allocations across threads (a run's
 /// report is built, rendered and dropped on a worker); mimalloc takes about a fifth off
@@ -105,17 +106,17 @@ fn forecast(
     let result = result?;
     let report = &result.report;
     let text = match format {
-        ForecastFormat::Table => report::forecast::table::render(report),
-        ForecastFormat::Tsv => report::forecast::tsv::render_joined(report),
-        ForecastFormat::Json => report::forecast::json(report),
-        ForecastFormat::Html => report::forecast::html::render(report),
+        ForecastFormat::Table => render::forecast::table::render(report),
+        ForecastFormat::Tsv => render::forecast::tsv::render_joined(report),
+        ForecastFormat::Json => render::forecast::json(report),
+        ForecastFormat::Html => render::forecast::html::render(report),
     };
     if let Some(dir) = write_trials {
         write_trial_folders(dir, &spec, &result)?;
     }
     match (out, format) {
         (Some(path), ForecastFormat::Tsv) => {
-            tangle::output::write_tables(path, &report::forecast::tsv::render(report), "variants")?
+            tangle::output::write_tables(path, &render::forecast::tsv::render(report), "variants")?
         }
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
         (None, _) => print_to_stdout(&text)?,
@@ -244,15 +245,15 @@ fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
 
 fn write_report(report: &Report, format: Format, out: Option<&Path>) -> tangle::Result<()> {
     let text = match format {
-        Format::Table => report::table::render(report),
-        Format::Tsv => report::tsv::render_joined(report),
-        Format::Json => report::json::render(report),
-        Format::Html => report::html::render(report),
-        Format::Methods => report::methods::render(report),
+        Format::Table => render::table::render(report),
+        Format::Tsv => render::tsv::render_joined(report),
+        Format::Json => render::json::render(report),
+        Format::Html => render::html::render(report),
+        Format::Methods => render::methods::render(report),
     };
     match (out, format) {
         (Some(path), Format::Tsv) => {
-            tangle::output::write_tables(path, &report::tsv::render(report), "regressors")?
+            tangle::output::write_tables(path, &render::tsv::render(report), "regressors")?
         }
         (Some(path), _) => tangle::output::write_atomically(path, &text)?,
         (None, _) => print_to_stdout(&text)?,

@@ -15,8 +15,8 @@ use serde::Deserialize;
 use serde_json::value::RawValue;
 
 use crate::check::{RunDigest, Summaries, summarise};
+use crate::diagnose::partition::{GroupShare, RegressorPartition};
 use crate::error::{Error, Result};
-use crate::partition::{GroupShare, RegressorPartition};
 use crate::screen::{CLAIMS_NOTE, Status};
 
 /// One shard report as read: its head kept as text, its runs as text plus what the
@@ -104,8 +104,8 @@ fn digest(fields: RunFields) -> Option<RunDigest> {
                 .iter()
                 .filter(|g| {
                     Some(&g.group) != p.model.as_ref()
-                        && g.group != crate::partition::TASK
-                        && g.group != crate::partition::NUISANCE
+                        && g.group != crate::diagnose::partition::TASK
+                        && g.group != crate::diagnose::partition::NUISANCE
                 })
                 .map(|g| (p.regressor.clone(), g.group.clone(), g.share))
         })

@@ -63,7 +63,7 @@ pub fn write_atomically_with(
 /// table to `<stem>.<table>.tsv` in the same folder.
 pub fn write_tables(
     path: &Path,
-    tables: &[crate::report::tsv::TsvTable],
+    tables: &[crate::render::tsv::TsvTable],
     main: &str,
 ) -> Result<()> {
     for table in tables {

@@ -273,7 +273,7 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
     assert_eq!(bids.runs.len(), 60);
     assert_eq!(vifs(&bids), vifs(&flat));
     for (b, f) in bids.runs.iter().zip(&flat.runs) {
-        fn codes(r: &tangle::report::model::RunReport) -> Vec<&str> {
+        fn codes(r: &tangle::report::RunReport) -> Vec<&str> {
             r.flags.iter().map(|f| f.code.as_ref()).collect()
         }
         assert_eq!(codes(b), codes(f), "subject {} run {}", b.subject, b.run);
@@ -345,9 +345,9 @@ fn sessions_are_kept_in_every_output_and_fill_nuisance_templates() {
         .find(|f| f.code == "slice_timing_reference")
         .expect("a note");
     assert!(note.message.contains("0.30 of the TR"), "{}", note.message);
-    let json = tangle::report::json::render(&report);
+    let json = tangle::render::json::render(&report);
     assert!(json.contains("\"session\": \"pre\""));
-    let tsv = tangle::report::tsv::render_joined(&report);
+    let tsv = tangle::render::tsv::render_joined(&report);
     assert!(
         tsv.starts_with("subject\trun\tsession\tregressor"),
         "{}",

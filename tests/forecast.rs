@@ -111,7 +111,7 @@ fn result_does_not_depend_on_the_thread_count() {
             let report = run_forecast(&spec, ForecastOptions::default(), &|| {})
                 .unwrap()
                 .report;
-            tangle::report::forecast::json(&report)
+            tangle::render::forecast::json(&report)
         })
     };
     let one = run(1);
@@ -346,7 +346,7 @@ weights = { kal = 1, dual = 3 }
         let last = p.plans[0].outcome_onsets[29];
         assert_eq!(p.plans[0].scans, ((last + 12.0) / 2.0).ceil() as usize);
     }
-    let json = tangle::report::forecast::json(report);
+    let json = tangle::render::forecast::json(report);
     assert!(!json.contains("NaN") && !json.contains("inf"));
 }
 
@@ -356,5 +356,5 @@ fn the_table_layout_is_stable() {
     let report = run_forecast(&spec, ForecastOptions::default(), &|| {})
         .unwrap()
         .report;
-    insta::assert_snapshot!(tangle::report::forecast::table::render(&report));
+    insta::assert_snapshot!(tangle::render::forecast::table::render(&report));
 }

@@ -7,7 +7,7 @@ use std::sync::OnceLock;
 use tangle::files::DiskFiles;
 use tangle::forecast::report::ForecastReport;
 use tangle::forecast::{read_spec, run_forecast};
-use tangle::report::forecast::html::render;
+use tangle::render::forecast::html::render;
 
 const HOSTILE: &str = "<script>x</script>";
 

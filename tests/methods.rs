@@ -7,7 +7,7 @@ mod common;
 use assert_cmd::Command;
 use serde_json::Value;
 use tangle::check::CheckOptions;
-use tangle::report::methods;
+use tangle::render::methods;
 
 use common::{StudyDir, regressor_names, study_toml, trials_csv};
 

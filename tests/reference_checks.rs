@@ -351,7 +351,7 @@ fn efficiency_of_a_hand_checkable_design() {
     assert_relative_eq!(inflation, 2.5 / 0.75, max_relative = 1e-12);
 }
 
-fn assert_components(got: &[tangle::partition::Component], want: &Value, tolerance: f64) {
+fn assert_components(got: &[tangle::diagnose::Component], want: &Value, tolerance: f64) {
     let want = want.as_array().unwrap();
     assert_eq!(got.len(), want.len());
     for (got, want) in got.iter().zip(want) {
@@ -380,7 +380,7 @@ fn commonality_components_match_statsmodels_fits_of_every_subset() {
         ("C", vec![column("POP"), column("YEAR")]),
     ];
     let (r2, components) =
-        tangle::partition::partition_with_intercept(&column("TOTEMP"), &groups).unwrap();
+        tangle::diagnose::partition::partition_with_intercept(&column("TOTEMP"), &groups).unwrap();
     assert_relative_eq!(r2, 0.995479004577296, max_relative = 1e-10);
     assert_components(&components, &expected["longley"]["components"], 1e-9);
     let total: f64 = components.iter().map(|c| c.share).sum();

@@ -7,7 +7,7 @@ use common::{Lcg, StudyDir, study_toml, trials_csv};
 use tangle::check::{CheckOptions, check_file};
 use tangle::design::{DesignSettings, build_design};
 use tangle::files::{DiskFiles, read_text};
-use tangle::partition::signal::BootstrapSettings;
+use tangle::signal::BootstrapSettings;
 use tangle::study::parse_study;
 use tangle::trials::{ScanTable, Table, collect_runs};
 

@@ -6,7 +6,8 @@ use std::path::Path;
 use serde::Deserialize;
 use tangle::check::{CheckOptions, check_file};
 use tangle::files::DiskFiles;
-use tangle::report::{self, Report};
+use tangle::render;
+use tangle::report::Report;
 
 /// Relative to the package root (the folder tests run in), so no machine path enters a snapshot.
 fn fixture() -> Report {
@@ -16,17 +17,17 @@ fn fixture() -> Report {
 
 #[test]
 fn table_output() {
-    insta::assert_snapshot!(report::table::render(&fixture()));
+    insta::assert_snapshot!(render::table::render(&fixture()));
 }
 
 #[test]
 fn tsv_output() {
-    insta::assert_snapshot!(report::tsv::render_joined(&fixture()));
+    insta::assert_snapshot!(render::tsv::render_joined(&fixture()));
 }
 
 #[test]
 fn json_output() {
-    insta::assert_snapshot!(report::json::render(&fixture()));
+    insta::assert_snapshot!(render::json::render(&fixture()));
 }
 
 /// The documented JSON fields, as a script would read them.
@@ -124,7 +125,7 @@ struct Subject {
 
 #[test]
 fn json_reads_back_into_typed_structures() {
-    let text = report::json::render(&fixture());
+    let text = render::json::render(&fixture());
     let output: Output = serde_json::from_str(&text).unwrap();
     assert_eq!(output.tool.name, "tangle");
     assert_eq!(output.tool.version, env!("CARGO_PKG_VERSION"));

@@ -2,18 +2,24 @@
 //! scaled to unit length: because the constant has been projected out, these columns
 //! are centred, and their Gram matrix is the correlation matrix of the design.
 
+pub mod commonality;
 mod conditioning;
 mod correlation;
 mod dependencies;
 mod efficiency;
+pub mod overlap;
+pub mod partition;
 mod sets;
 mod spectrum;
+pub mod triangle;
 mod vif;
 
 pub use conditioning::{Conditioning, belsley};
 pub use correlation::{TrialCorrelation, trial_correlations};
 pub use dependencies::{DEPENDENCY_TOLERANCE, Dependency};
 pub use efficiency::Contrast;
+pub use overlap::ModelOverlap;
+pub use partition::{Component, GroupShare, RegressorPartition};
 pub use sets::{ModelSet, scaled as scaled_gvif};
 pub use spectrum::Spectrum;
 
@@ -21,8 +27,8 @@ use nalgebra::DMatrix;
 
 use crate::design::{Design, RegressorKind};
 use crate::flags::{Flag, Severity};
-use crate::partition::gram::Triangle;
-use crate::partition::{self, Group, ModelOverlap, RegressorPartition};
+use partition::Group;
+use triangle::Triangle;
 
 /// A column whose filtered norm is below this fraction of its sampled norm lies
 /// (numerically) inside the drift space and carries no information.
@@ -381,7 +387,7 @@ fn model_overlaps(design: &Design, core: &Core) -> Vec<ModelOverlap> {
         .filter(|g| g.name != partition::TASK && g.name != partition::NUISANCE)
         .collect();
     let sets: Vec<&[usize]> = models.iter().map(|g| g.members.as_slice()).collect();
-    let mut pairs = partition::overlap::overlaps(&kept, &sets, &controls).into_iter();
+    let mut pairs = overlap::overlaps(&kept, &sets, &controls).into_iter();
     let mut result = Vec::new();
     for (i, first) in models.iter().enumerate() {
         for second in &models[i + 1..] {

@@ -7,7 +7,7 @@
 use serde::{Deserialize, Serialize};
 
 use super::Spectrum;
-use crate::partition::gram::Triangle;
+use super::triangle::Triangle;
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ModelSet {

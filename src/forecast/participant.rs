@@ -12,7 +12,7 @@ use super::simulate::{Persona, RunPlan, Stream, behave, plan_run, stream};
 use super::spec::{ForecastSpec, TaskVariant};
 use crate::check::{CheckOptions, assess_run};
 use crate::design::DesignSettings;
-use crate::report::model::RunReport;
+use crate::report::RunReport;
 use crate::study::{
     Acquisition, Duration, EventSpec, HrfSettings, ModelSpec, ModulatorSpec, ScanCounts, Study,
     TrialSource,

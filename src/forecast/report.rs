@@ -4,7 +4,7 @@ use serde::Serialize;
 
 use super::spec::{ForecastSpec, Interval, RankBy, Reversal, Rewards, RunLength, Task};
 use super::summary::{ModelSetForecast, Recovery, RegressorForecast, StatusCounts};
-use crate::report::model::ToolInfo;
+use crate::report::ToolInfo;
 use crate::study::Thresholds;
 
 #[derive(Debug, Clone, Serialize)]

@@ -11,8 +11,8 @@ use serde::Serialize;
 use statrs::statistics::{Data, OrderStatistics};
 
 use crate::design::RegressorKind;
-use crate::partition::{NUISANCE, TASK};
-use crate::report::model::RunReport;
+use crate::diagnose::partition::{NUISANCE, TASK};
+use crate::report::RunReport;
 use crate::screen::Status;
 use crate::study::Thresholds;
 

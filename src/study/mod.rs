@@ -166,6 +166,10 @@ impl Default for Thresholds {
 }
 
 pub const DEFAULT_MICROTIME: usize = 16;
+/// The most models a study may declare: with the task and nuisance groups, the
+/// commonality partition has 2^(models + 2) − 1 components per modulator
+/// (`crate::diagnose::commonality::MAX_GROUPS` holds the two in step).
+pub const MAX_MODELS: usize = 14;
 /// The most volumes per run tangle accepts (a day of scanning at TR 1 s); beyond that a
 /// count is taken for a typo or a damaged header rather than allocated.
 pub const MAX_SCANS: usize = 100_000;

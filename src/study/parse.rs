@@ -20,7 +20,7 @@ use crate::toml_read::{Table, TomlReader, get, has_key, parse_toml};
 const MIN_PLAUSIBLE_TR: f64 = 0.06;
 
 /// Models plus the task and nuisance groups must stay within the partition's group limit.
-const MAX_MODELS: usize = crate::partition::commonality::MAX_GROUPS - 2;
+use super::MAX_MODELS;
 
 /// Parses and validates a study file. `path` is used for messages and to resolve the
 /// relative paths inside it.

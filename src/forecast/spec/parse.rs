@@ -31,7 +31,7 @@ const LEARNER_KEYS: &[&str] = &["name", "kind", "modulators", "priors"];
 const GENERATE_KEYS: &[&str] = &["learner", "weights"];
 const COMPARE_KEYS: &[&str] = &["regressors", "rank_by"];
 /// Models plus the task and nuisance groups must stay within the partition's limit.
-const MAX_LEARNERS: usize = crate::partition::commonality::MAX_GROUPS - 2;
+const MAX_LEARNERS: usize = crate::diagnose::commonality::MAX_GROUPS - 2;
 /// Group names of the variance partition, which a learner may not take.
 const RESERVED: &[&str] = &["task", "nuisance", "unique"];
 

@@ -1,0 +1,187 @@
+//! The third paragraph: VIFs over runs, statuses, shares and dependencies.
+
+use super::format::{count, percent, percent_range, vif};
+use super::layout::{Layout, Named};
+use crate::cohort::partition::UNIQUE;
+use crate::report::Report;
+use crate::report::RunReport;
+
+pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
+    let mut sentences: Vec<String> = Vec::new();
+    let runs = &report.runs;
+
+    // VIFs over runs: the modulators, or the event regressors if there are none.
+    let (what, regressors): (&str, Vec<&Named>) = if layout.has_modulators() {
+        ("modulator", layout.modulators().map(|(_, m)| m).collect())
+    } else {
+        ("event-regressor", layout.events.iter().collect())
+    };
+    if !regressors.is_empty() && !runs.is_empty() {
+        let items: Vec<String> = regressors
+            .iter()
+            .map(|named| vif_summary(runs, named))
+            .collect();
+        sentences.push(format!(
+            "Over runs, {what} VIFs had median (range): {}.",
+            items.join("; ")
+        ));
+    }
+
+    let cohort = &report.cohort;
+    sentences.push(if cohort.ok == cohort.subjects {
+        format!(
+            "None of the {} reached caution or severe status.",
+            count(cohort.subjects, "participant", "participants")
+        )
+    } else {
+        format!(
+            "Of the {}, {} reached severe status, {} caution and {} neither.",
+            count(cohort.subjects, "participant", "participants"),
+            cohort.severe,
+            cohort.caution,
+            cohort.ok
+        )
+    });
+
+    if let Some(shares) = share_sentence(report, layout) {
+        sentences.push(shares);
+    }
+
+    let exact = participants_with(report, |run| {
+        run.flags.iter().any(|f| f.code == "exact_dependency")
+    });
+    let entangled = participants_with(report, |run| !run.entangled_dimensions.is_empty());
+    let participants = |n| count(n, "participant", "participants");
+    sentences.push(match (entangled, exact) {
+        (0, 0) => "No run had a near-dependency or an exact dependency.".to_string(),
+        (0, e) => format!(
+            "No run had a near-dependency; exact dependencies occurred in {}.",
+            participants(e)
+        ),
+        (n, 0) => format!(
+            "Near-dependencies occurred in {}; no run had an exact dependency.",
+            participants(n)
+        ),
+        (n, e) => format!(
+            "Near-dependencies occurred in {} and exact dependencies in {}.",
+            participants(n),
+            participants(e)
+        ),
+    });
+    sentences.join(" ")
+}
+
+/// "label median (min–max)", with the runs in which the VIF was undefined.
+fn vif_summary(runs: &[RunReport], named: &Named) -> String {
+    let mut values: Vec<f64> = Vec::new();
+    let mut undefined = 0usize;
+    for run in runs {
+        let Some(index) = run
+            .regressors
+            .iter()
+            .position(|e| e.regressor.name == named.name)
+        else {
+            continue;
+        };
+        match run.vif.get(index).copied().flatten() {
+            Some(v) if v.is_finite() => values.push(v),
+            _ => undefined += 1,
+        }
+    }
+    values.sort_by(f64::total_cmp);
+    let undefined_note = |all: bool| {
+        if all {
+            format!("undefined in all {}", count(undefined, "run", "runs"))
+        } else {
+            format!("undefined in {}", count(undefined, "run", "runs"))
+        }
+    };
+    match (
+        crate::cohort::partition::median(&values),
+        values.first(),
+        values.last(),
+    ) {
+        (Some(mid), Some(&low), Some(&high)) => {
+            let note = if undefined > 0 {
+                format!("; {}", undefined_note(false))
+            } else {
+                String::new()
+            };
+            format!(
+                "{} {} ({}–{}{note})",
+                named.label,
+                vif(mid),
+                vif(low),
+                vif(high)
+            )
+        }
+        _ => format!("{} ({})", named.label, undefined_note(true)),
+    }
+}
+
+/// The commonality results: per modulator, its median share with each other model and
+/// its median own share (participant means over runs, summarised over participants).
+fn share_sentence(report: &Report, layout: &Layout) -> Option<String> {
+    let find = |regressor: &str, part: &str| {
+        report
+            .cohort_partition
+            .iter()
+            .find(|c| c.regressor == regressor && c.part == part)
+    };
+    let mut items: Vec<String> = Vec::new();
+    for (model, named) in layout.modulators() {
+        // The first item says what the numbers are; the others follow its pattern.
+        let (of_its, as_own) = if items.is_empty() {
+            (" of its variance", " as its own")
+        } else {
+            ("", "")
+        };
+        let mut parts: Vec<String> = Vec::new();
+        for other in layout.models.iter().filter(|m| m.name != model.name) {
+            if let Some(share) = find(&named.name, &other.name) {
+                parts.push(format!(
+                    "{} ({}){} with {}",
+                    percent(share.median),
+                    percent_range(share.min, share.max),
+                    if parts.is_empty() { of_its } else { "" },
+                    other.name
+                ));
+            }
+        }
+        let own = find(&named.name, UNIQUE);
+        let item = match (parts.is_empty(), own) {
+            (true, None) => continue,
+            (true, Some(own)) => format!(
+                "{} kept {} ({}){of_its}{as_own}",
+                named.label,
+                percent(own.median),
+                percent_range(own.min, own.max)
+            ),
+            (false, None) => format!("{} shared {}", named.label, parts.join(", ")),
+            (false, Some(own)) => format!(
+                "{} shared {} and kept {}{as_own}",
+                named.label,
+                parts.join(", "),
+                percent(own.median)
+            ),
+        };
+        items.push(item);
+    }
+    if items.is_empty() {
+        return None;
+    }
+    Some(format!(
+        "In the commonality analysis (each participant's mean over runs; median and range over participants), {}.",
+        items.join("; ")
+    ))
+}
+
+fn participants_with(report: &Report, test: impl Fn(&RunReport) -> bool) -> usize {
+    let mut subjects: Vec<&str> = Vec::new();
+    for run in report.runs.iter().filter(|r| test(r)) {
+        if !subjects.contains(&run.subject.as_str()) {
+            subjects.push(run.subject.as_str());
+        }
+    }
+    subjects.len()
+}

@@ -1,0 +1,462 @@
+//! `--format tsv`: tidy tables, one per kind of result, full precision, `n/a` where a
+//! value is undefined. With `--out FILE.tsv` each table is its own file
+//! (FILE.tsv for the regressors, FILE.<table>.tsv for the others); on standard output
+//! they follow each other, each after a line `# <table>`.
+
+use super::format::exact;
+use crate::report::Report;
+use crate::report::RunReport;
+
+pub struct TsvTable {
+    pub name: &'static str,
+    pub text: String,
+}
+
+struct Builder {
+    text: String,
+    /// A `session` column after `run`, when any run has a BIDS session.
+    sessions: bool,
+}
+
+impl Builder {
+    /// `header` starts with "subject", "run".
+    fn new(report: &Report, header: &[&str]) -> Self {
+        let sessions = report.runs.iter().any(|r| r.session.is_some());
+        let mut header = header.to_vec();
+        if sessions {
+            header.insert(2, "session");
+        }
+        Builder {
+            text: format!("{}\n", header.join("\t")),
+            sessions,
+        }
+    }
+
+    fn row(&mut self, run: &RunReport, cells: Vec<String>) {
+        let mut all = vec![clean(&run.subject), clean(&run.run)];
+        if self.sessions {
+            all.push(run.session.as_deref().map_or_else(|| "n/a".into(), clean));
+        }
+        all.extend(cells.iter().map(|c| clean(c)));
+        self.text.push_str(&all.join("\t"));
+        self.text.push('\n');
+    }
+
+    fn done(self, name: &'static str) -> TsvTable {
+        TsvTable {
+            name,
+            text: self.text,
+        }
+    }
+}
+
+fn text(value: &Option<String>) -> String {
+    value.clone().unwrap_or_else(|| "n/a".into())
+}
+
+pub fn render(report: &Report) -> Vec<TsvTable> {
+    vec![
+        regressors(report),
+        dimensions(report),
+        model_sets(report),
+        contrasts(report),
+        dependencies(report),
+        partition(report),
+        model_overlap(report),
+        signal(report),
+        flags(report),
+        subjects(report),
+        cohort_partition(report),
+    ]
+}
+
+/// Everything on standard output, one table after another.
+pub fn render_joined(report: &Report) -> String {
+    let tables = render(report);
+    let mut text = String::new();
+    for (i, table) in tables.iter().enumerate() {
+        if i > 0 {
+            text.push_str(&format!("\n# {}\n", table.name));
+        }
+        text.push_str(&table.text);
+    }
+    text
+}
+
+fn regressors(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "regressor",
+            "kind",
+            "event",
+            "model",
+            "column",
+            "in_design",
+            "vif",
+            "se_inflation",
+            "efficiency",
+            "status",
+            "most_correlated",
+            "r",
+            "vif_serial",
+            "run_status",
+        ],
+    );
+    for run in &report.runs {
+        for (index, entry) in run.regressors.iter().enumerate() {
+            let regressor = &entry.regressor;
+            let partner = run.correlation[index]
+                .iter()
+                .enumerate()
+                .filter_map(|(other, r)| r.filter(|_| other != index).map(|r| (other, r)))
+                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            table.row(
+                run,
+                vec![
+                    regressor.name.clone(),
+                    regressor.kind.label().to_string(),
+                    text(&regressor.event),
+                    text(&regressor.model),
+                    text(&regressor.column),
+                    entry.in_design.to_string(),
+                    exact(run.vif[index]),
+                    exact(run.se_inflation[index]),
+                    exact(run.efficiency[index]),
+                    entry.status.label().to_string(),
+                    partner.map_or("n/a".into(), |(other, _)| {
+                        run.regressors[other].regressor.name.clone()
+                    }),
+                    exact(partner.map(|(_, r)| r)),
+                    exact(run.orthogonalised.as_ref().and_then(|view| view.vif[index])),
+                    run.status.label().to_string(),
+                ],
+            );
+        }
+    }
+    table.done("regressors")
+}
+
+fn dimensions(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "dimension",
+            "condition_index",
+            "regressor",
+            "proportion",
+            "entangled",
+        ],
+    );
+    for run in &report.runs {
+        for (k, (index, row)) in run
+            .condition_indices
+            .iter()
+            .zip(&run.variance_proportions)
+            .enumerate()
+        {
+            let entangled = run
+                .entangled_dimensions
+                .iter()
+                .find(|d| d.dimension == k + 1);
+            for (j, proportion) in row.iter().enumerate() {
+                let Some(proportion) = proportion else {
+                    continue;
+                };
+                let name = &run.regressors[j].regressor.name;
+                let loads = entangled.is_some_and(|d| d.regressors.contains(name));
+                table.row(
+                    run,
+                    vec![
+                        (k + 1).to_string(),
+                        index.to_string(),
+                        name.clone(),
+                        proportion.to_string(),
+                        loads.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("dimensions")
+}
+
+fn model_sets(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "model",
+            "df",
+            "gvif",
+            "gvif_scaled",
+            "regressors",
+        ],
+    );
+    for run in &report.runs {
+        for set in &run.model_sets {
+            table.row(
+                run,
+                vec![
+                    set.model.clone(),
+                    set.df.to_string(),
+                    exact(set.gvif),
+                    exact(set.gvif_scaled),
+                    set.regressors.join(","),
+                ],
+            );
+        }
+    }
+    table.done("model_sets")
+}
+
+fn contrasts(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "contrast",
+            "first",
+            "second",
+            "efficiency",
+            "variance_inflation",
+        ],
+    );
+    for run in &report.runs {
+        for contrast in &run.contrasts {
+            table.row(
+                run,
+                vec![
+                    contrast.name.clone(),
+                    contrast.regressors[0].clone(),
+                    contrast.regressors[1].clone(),
+                    exact(contrast.efficiency),
+                    exact(contrast.variance_inflation),
+                ],
+            );
+        }
+    }
+    table.done("contrasts")
+}
+
+fn dependencies(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &["subject", "run", "dependency", "regressor", "coefficient"],
+    );
+    for run in &report.runs {
+        for (number, dependency) in run.dependencies.iter().enumerate() {
+            for (name, coefficient) in dependency.regressors.iter().zip(&dependency.coefficients) {
+                table.row(
+                    run,
+                    vec![
+                        (number + 1).to_string(),
+                        name.clone(),
+                        coefficient.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("dependencies")
+}
+
+fn flags(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "severity",
+            "code",
+            "regressors",
+            "message",
+        ],
+    );
+    for run in &report.runs {
+        for flag in &run.flags {
+            table.row(
+                run,
+                vec![
+                    flag.severity.label().to_string(),
+                    flag.code.to_string(),
+                    flag.regressors.join(","),
+                    flag.message.clone(),
+                ],
+            );
+        }
+    }
+    table.done("flags")
+}
+
+fn partition(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "regressor",
+            "r2",
+            "unique",
+            "groups",
+            "share",
+        ],
+    );
+    for run in &report.runs {
+        for partition in &run.partition {
+            for component in &partition.components {
+                table.row(
+                    run,
+                    vec![
+                        partition.regressor.clone(),
+                        exact(partition.r2),
+                        exact(partition.unique),
+                        component.groups.join("+"),
+                        component.share.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("partition")
+}
+
+fn model_overlap(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject",
+            "run",
+            "first",
+            "second",
+            "canonical_correlations",
+            "first_explained_by_second",
+            "second_explained_by_first",
+        ],
+    );
+    for run in &report.runs {
+        for overlap in &run.model_overlap {
+            let correlations: Vec<String> = overlap
+                .canonical_correlations
+                .iter()
+                .map(f64::to_string)
+                .collect();
+            table.row(
+                run,
+                vec![
+                    overlap.models[0].clone(),
+                    overlap.models[1].clone(),
+                    correlations.join(","),
+                    overlap.explained[0].to_string(),
+                    overlap.explained[1].to_string(),
+                ],
+            );
+        }
+    }
+    table.done("model_overlap")
+}
+
+fn signal(report: &Report) -> TsvTable {
+    let mut table = Builder::new(
+        report,
+        &[
+            "subject", "run", "region", "r2", "r2_base", "groups", "share", "low", "high",
+        ],
+    );
+    for run in &report.runs {
+        for region in &run.signal {
+            for c in &region.components {
+                table.row(
+                    run,
+                    vec![
+                        region.region.clone(),
+                        region.r2.to_string(),
+                        region.r2_base.to_string(),
+                        c.groups.join("+"),
+                        c.share.to_string(),
+                        c.low.to_string(),
+                        c.high.to_string(),
+                    ],
+                );
+            }
+        }
+    }
+    table.done("signal")
+}
+
+/// Tables of the whole cohort have no run columns.
+pub(crate) fn plain_table(header: &[&str], rows: Vec<Vec<String>>, name: &'static str) -> TsvTable {
+    let mut text = format!("{}\n", header.join("\t"));
+    for row in rows {
+        let cells: Vec<String> = row.iter().map(|c| clean(c)).collect();
+        text.push_str(&cells.join("\t"));
+        text.push('\n');
+    }
+    TsvTable { name, text }
+}
+
+fn subjects(report: &Report) -> TsvTable {
+    let rows = report
+        .subjects
+        .iter()
+        .map(|s| {
+            vec![
+                s.subject.clone(),
+                exact(s.worst_vif),
+                text(&s.worst_regressor),
+                text(&s.worst_run),
+                exact(s.worst_condition_index),
+                text(&s.largest_shared.as_ref().map(|l| l.regressor.clone())),
+                text(&s.largest_shared.as_ref().map(|l| l.model.clone())),
+                exact(s.largest_shared.as_ref().map(|l| l.share)),
+                s.status.label().to_string(),
+                s.runs_flagged.join(","),
+            ]
+        })
+        .collect();
+    plain_table(
+        &[
+            "subject",
+            "worst_vif",
+            "worst_regressor",
+            "worst_run",
+            "status",
+            "runs_flagged",
+        ],
+        rows,
+        "subjects",
+    )
+}
+
+fn cohort_partition(report: &Report) -> TsvTable {
+    let rows = report
+        .cohort_partition
+        .iter()
+        .map(|c| {
+            vec![
+                c.regressor.clone(),
+                c.part.clone(),
+                c.participants.to_string(),
+                c.median.to_string(),
+                c.min.to_string(),
+                c.max.to_string(),
+            ]
+        })
+        .collect();
+    plain_table(
+        &["regressor", "part", "participants", "median", "min", "max"],
+        rows,
+        "cohort_partition",
+    )
+}
+
+/// Tabs and line breaks inside a cell would break the table.
+pub(crate) fn clean(cell: &str) -> String {
+    cell.replace(['\t', '\n', '\r'], " ")
+}
