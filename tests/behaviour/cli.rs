@@ -1,8 +1,6 @@
 //! The binary on small fixtures: outputs, exit codes and the behaviour promised in the README.
 
-mod common;
-
-use common::{Lcg, StudyDir, regressor_names, study_toml, trials_csv};
+use crate::common::{Lcg, StudyDir, regressor_names, study_toml, trials_csv};
 use predicates::prelude::*;
 use serde_json::Value;
 

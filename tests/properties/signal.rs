@@ -1,9 +1,7 @@
 //! The signal partition on simulated regions built from known unique and shared parts:
 //! the partition must recover them within its stated (bootstrap) uncertainty.
 
-mod common;
-
-use common::{Lcg, StudyDir, study_toml, trials_csv};
+use crate::common::{Lcg, StudyDir, study_toml, trials_csv};
 use tangle::check::{CheckOptions, check_file};
 use tangle::design::{DesignSettings, build_design};
 use tangle::files::{DiskFiles, read_text};
