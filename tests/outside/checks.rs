@@ -4,6 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
+use crate::common::paired;
 use approx::assert_relative_eq;
 use serde_json::Value;
 use tangle::design::hrf::{canonical, canonical_derivative, sampled};
@@ -69,7 +70,7 @@ fn longley_vifs_match_statsmodels() {
         .collect();
     let result = with_intercept(&predictors, &chosen);
     assert!(result.dependencies.is_empty());
-    for (got, want) in result.vif.iter().zip(numbers(&expected["vif"])) {
+    for (got, want) in paired(&result.vif, numbers(&expected["vif"]), "Longley VIFs") {
         // The data's raw XᵀX has condition number ≈ 1e19; 1e-9 relative is far inside
         // what the routes agree to (stats-references.md §1).
         assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
@@ -82,11 +83,10 @@ fn hrf_samples_match_scipy_gamma() {
     // scipy.stats.gamma.pdf(t, 6) - gamma.pdf(t, 16)/6 at t = 0..32 s, and its derivative.
     let hrf = json("hrf.json");
     let unit = &hrf["unit_grid"];
-    for ((t, h), dh) in numbers(&unit["t"])
-        .iter()
-        .zip(numbers(&unit["h"]))
-        .zip(numbers(&unit["dh_dt"]))
-    {
+    let t = numbers(&unit["t"]);
+    let h = numbers(&unit["h"]);
+    let dh = numbers(&unit["dh_dt"]);
+    for ((t, h), dh) in paired(paired(&t, h, "t and h(t)"), dh, "h(t) and dh/dt") {
         // Absolute 1e-15 where the two gamma terms nearly cancel (zero crossing near 12 s).
         assert_relative_eq!(canonical(*t), h, max_relative = 1e-12, epsilon = 1e-15);
         assert_relative_eq!(
@@ -101,7 +101,7 @@ fn hrf_samples_match_scipy_gamma() {
     let (kernel, _) = sampled(micro["dt"].as_f64().unwrap());
     let expected = numbers(&micro["h_over_sum"]);
     assert_eq!(kernel.samples.len(), expected.len());
-    for (got, want) in kernel.samples.iter().zip(expected) {
+    for (got, want) in paired(&kernel.samples, expected, "microtime kernel") {
         assert_relative_eq!(*got, want, max_relative = 1e-12, epsilon = 1e-15);
     }
 }
@@ -121,22 +121,22 @@ fn design_columns_match_an_independent_numpy_build() {
     let expected_names = strings(&expected["regressors"]);
     assert_eq!(names, expected_names);
     for (key, columns) in [("sampled", &design.sampled), ("filtered", &design.filtered)] {
-        for (column, want) in columns.iter().zip(expected[key].as_array().unwrap()) {
-            for (got, want) in column.iter().zip(numbers(want)) {
+        for (column, want) in paired(columns, expected[key].as_array().unwrap(), key) {
+            for (got, want) in paired(column, numbers(want), key) {
                 assert_relative_eq!(*got, want, max_relative = 1e-9, epsilon = 1e-12);
             }
         }
     }
     let diagnostics = diagnose(&design);
-    for (got, want) in diagnostics.vif.iter().zip(numbers(&expected["vif"])) {
+    for (got, want) in paired(&diagnostics.vif, numbers(&expected["vif"]), "fixture VIFs") {
         assert_relative_eq!(got.unwrap(), want, max_relative = 1e-10);
     }
-    for (row, want) in diagnostics
-        .correlation
-        .iter()
-        .zip(expected["correlation"].as_array().unwrap())
-    {
-        for (got, want) in row.iter().zip(numbers(want)) {
+    for (row, want) in paired(
+        &diagnostics.correlation,
+        expected["correlation"].as_array().unwrap(),
+        "correlation rows",
+    ) {
+        for (got, want) in paired(row, numbers(want), "a correlation row") {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-10, epsilon = 1e-12);
         }
     }
@@ -150,7 +150,7 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
     let report = tangle::demo::check_demo(Default::default()).unwrap();
     let runs = expected["runs"].as_array().unwrap();
     assert_eq!(report.runs.len(), runs.len());
-    for (run, want) in report.runs.iter().zip(runs) {
+    for (run, want) in paired(&report.runs, runs, "demo runs") {
         assert_eq!(run.subject, want["subject"].as_str().unwrap());
         assert_eq!(run.run, want["run"].as_str().unwrap());
         let names: Vec<&str> = run
@@ -160,7 +160,7 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
             .collect();
         let expected_names = strings(&expected["regressors"]);
         assert_eq!(names, expected_names);
-        for (got, want) in run.vif.iter().zip(numbers(&want["vif"])) {
+        for (got, want) in paired(&run.vif, numbers(&want["vif"]), "a demo run's VIFs") {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
         }
     }
@@ -182,11 +182,13 @@ fn longley_condition_indices_and_proportions_match_a_numpy_svd() {
         design.push(columns[headers.iter().position(|h| h == name).unwrap()].clone());
     }
     let (indices, proportions) = belsley(&design).unwrap();
-    for (got, want) in indices.iter().zip(numbers(&expected["condition_indices"])) {
+    let expected_indices = numbers(&expected["condition_indices"]);
+    for (got, want) in paired(&indices, expected_indices, "condition indices") {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
-    for (row, want) in proportions.iter().zip(table_of(&expected["proportions"])) {
-        for (got, want) in row.iter().zip(want) {
+    let expected_proportions = table_of(&expected["proportions"]);
+    for (row, want) in paired(&proportions, expected_proportions, "proportion rows") {
+        for (got, want) in paired(row, want, "a proportion row") {
             assert_relative_eq!(*got, want, epsilon = 1e-9, max_relative = 1e-7);
         }
     }
@@ -210,17 +212,13 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
     let case = &published()["bkw_mtcars"];
     let columns = with_ones(&case["data"], &["disp", "hp", "wt", "drat"], 32);
     let (indices, proportions) = belsley(&columns).unwrap();
-    for (got, want) in indices
-        .iter()
-        .zip(numbers(&case["published"]["condition_indices"]))
-    {
+    let published_indices = numbers(&case["published"]["condition_indices"]);
+    for (got, want) in paired(&indices, published_indices, "mtcars condition indices") {
         assert!((got - want).abs() < 5e-7, "{got} vs {want}");
     }
-    for (row, want) in proportions
-        .iter()
-        .zip(table_of(&case["published"]["proportions"]))
-    {
-        for (got, want) in row.iter().zip(want) {
+    let published_proportions = table_of(&case["published"]["proportions"]);
+    for (row, want) in paired(&proportions, published_proportions, "mtcars rows") {
+        for (got, want) in paired(row, want, "an mtcars row") {
             assert!((got - want).abs() < 5e-7, "{got} vs {want}");
         }
     }
@@ -229,10 +227,8 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
     let case = &published()["bkw_bodyfat"];
     let columns = with_ones(&case["data"], &["triceps", "thigh", "midarm"], 20);
     let (indices, proportions) = belsley(&columns).unwrap();
-    for (got, want) in indices
-        .iter()
-        .zip(numbers(&case["published"]["condition_indices"]))
-    {
+    let published_indices = numbers(&case["published"]["condition_indices"]);
+    for (got, want) in paired(&indices, published_indices, "body fat condition indices") {
         assert!((got - want).abs() < 5e-7, "{got} vs {want}");
     }
     let by_variable =
@@ -354,7 +350,7 @@ fn efficiency_of_a_hand_checkable_design() {
 fn assert_components(got: &[tangle::partition::Component], want: &Value, tolerance: f64) {
     let want = want.as_array().unwrap();
     assert_eq!(got.len(), want.len());
-    for (got, want) in got.iter().zip(want) {
+    for (got, want) in paired(got, want, "components") {
         assert_eq!(got.groups, strings(&want["groups"]));
         let expected = want["share"].as_f64().unwrap();
         assert!(
@@ -423,18 +419,18 @@ fn model_overlap_matches_numpy_canonical_correlations() {
     let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
     let overlap = &report.runs[0].model_overlap[0];
     assert_eq!(overlap.models, ["a", "b"]);
-    for (got, want) in overlap
-        .canonical_correlations
-        .iter()
-        .zip(numbers(&expected["canonical_correlations"]))
-    {
+    for (got, want) in paired(
+        &overlap.canonical_correlations,
+        numbers(&expected["canonical_correlations"]),
+        "canonical correlations",
+    ) {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
-    for (got, want) in overlap
-        .explained
-        .iter()
-        .zip(numbers(&expected["explained"]))
-    {
+    for (got, want) in paired(
+        &overlap.explained,
+        numbers(&expected["explained"]),
+        "explained shares",
+    ) {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
 }
@@ -451,7 +447,8 @@ fn choice_probabilities_likelihood_and_fitted_temperature_match_scipy() {
         let beta = case["inverse_temperature"].as_f64().unwrap();
         let values = numbers(&case["values"]);
         let p = softmax(beta, &values);
-        for (i, (got, want)) in p.iter().zip(numbers(&case["probabilities"])).enumerate() {
+        let probabilities = numbers(&case["probabilities"]);
+        for (i, (got, want)) in paired(&p, probabilities, "probabilities").enumerate() {
             assert!(
                 (got - want).abs() <= 1e-12,
                 "β = {beta}, p[{i}]: {got} vs {want}"
@@ -467,11 +464,8 @@ fn choice_probabilities_likelihood_and_fitted_temperature_match_scipy() {
     let sequence = &expected["sequence"];
     let options = sequence["options"].as_u64().unwrap() as usize;
     let initial_value = sequence["initial_value"].as_f64().unwrap();
-    let run: Vec<ChoiceOutcome> = sequence["choices"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .zip(numbers(&sequence["rewards"]))
+    let choices = sequence["choices"].as_array().unwrap();
+    let run: Vec<ChoiceOutcome> = paired(choices, numbers(&sequence["rewards"]), "the sequence")
         .map(|(c, reward)| ChoiceOutcome {
             choice: c.as_u64().unwrap() as usize,
             reward,
