@@ -365,7 +365,7 @@ fn assert_components(got: &[tangle::partition::Component], want: &Value, toleran
 #[test]
 fn commonality_components_match_statsmodels_fits_of_every_subset() {
     // Each subset R² refitted by statsmodels OLS (tests/reference/make_references.py); ours
-    // come from blocks of one Gram matrix. Longley: TOTEMP on A = {GNPDEFL, GNP},
+    // come from the triangle of one QR of the unit-length centred columns, as in a run. Longley: TOTEMP on A = {GNPDEFL, GNP},
     // B = {UNEMP, ARMED}, C = {POP, YEAR}; the full R² is the NIST certified 0.995479004577296.
     let expected = json("commonality.json");
     let (headers, columns) = longley();
