@@ -195,8 +195,15 @@ fn longley_condition_indices_and_proportions_match_a_numpy_svd() {
     assert_relative_eq!(indices[6], 43275.0436, max_relative = 1e-8);
 }
 
+/// Values a named source printed (tests/reference/published.json).
 fn published() -> Value {
     json("published.json")
+}
+
+/// Values computed for the tests, each entry saying how (tests/reference/computed.json,
+/// written and re-checked by make_references.py).
+fn computed() -> Value {
+    json("computed.json")
 }
 
 fn with_ones(data: &Value, names: &[&str], rows: usize) -> Vec<Vec<f64>> {
@@ -246,9 +253,10 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
 
 #[test]
 fn gvif_matches_exact_longley_values_and_the_published_duncan_example() {
-    // Longley sets: Fox & Monette (1992) formula with exact rational determinants (shared
-    // research notes, gvif.longley); a set and its complement share their GVIF.
-    let case = &published()["gvif_longley"]["expected"];
+    // Longley sets, computed: Fox & Monette (1992) formula with exact rational determinants
+    // (Python fractions in make_references.py, computed.json gvif_longley); a set and its
+    // complement share their GVIF.
+    let case = &computed()["gvif_longley"]["expected"];
     let (headers, columns) = longley();
     let predictors: Vec<Vec<f64>> = ["GNPDEFL", "GNP", "UNEMP", "ARMED", "POP", "YEAR"]
         .iter()
@@ -330,8 +338,8 @@ fn gvif_matches_exact_longley_values_and_the_published_duncan_example() {
 
 #[test]
 fn efficiency_of_a_hand_checkable_design() {
-    // X = [1, x1, x2], x1 = [1, 1, −1, −1], x2 = [1, 0, 0, −1] (shared research notes,
-    // efficiency.toy; Dale 1999 definition). By hand: XᵀX = [[4,0,0],[0,4,2],[0,2,2]],
+    // X = [1, x1, x2], x1 = [1, 1, −1, −1], x2 = [1, 0, 0, −1]; efficiency as defined by
+    // Dale (1999). Computed by hand: XᵀX = [[4,0,0],[0,4,2],[0,2,2]],
     // (XᵀX)⁻¹ = [[.25,0,0],[0,.5,−.5],[0,−.5,1]], so efficiency = 1/0.5 = 2 for x1,
     // 1/1 = 1 for x2, and 1/(0.5 + 1 + 2·0.5) = 0.4 for x1 − x2; r = 1/√2, VIF = 2.
     let x1 = vec![1.0, 1.0, -1.0, -1.0];
@@ -345,6 +353,34 @@ fn efficiency_of_a_hand_checkable_design() {
     assert_relative_eq!(efficiency, 0.4, max_relative = 1e-12);
     // Uncorrelated columns of the same sizes would give 1/4 + 1/2 = 0.75: 2.5 / 0.75.
     assert_relative_eq!(inflation, 2.5 / 0.75, max_relative = 1e-12);
+    // The same numbers computed by exact rational arithmetic (Python fractions in
+    // make_references.py, computed.json efficiency_toy).
+    let toy = &computed()["efficiency_toy"]["expected"];
+    let value = |key: &str| toy["efficiency"][key].as_f64().unwrap();
+    assert_relative_eq!(
+        result.vif[0].unwrap(),
+        toy["vif"].as_f64().unwrap(),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        result.efficiency[0].unwrap(),
+        value("c=[0,1,0]"),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        result.efficiency[1].unwrap(),
+        value("c=[0,0,1]"),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(efficiency, value("c=[0,1,-1]"), max_relative = 1e-12);
+    let uncorrelated = toy["efficiency_with_no_correlation_same_ss"]["c=[0,1,-1]"]
+        .as_f64()
+        .unwrap();
+    assert_relative_eq!(
+        inflation,
+        uncorrelated / value("c=[0,1,-1]"),
+        max_relative = 1e-12
+    );
 }
 
 fn assert_components(got: &[tangle::partition::Component], want: &Value, tolerance: f64) {
@@ -365,8 +401,9 @@ fn assert_components(got: &[tangle::partition::Component], want: &Value, toleran
 #[test]
 fn commonality_components_match_statsmodels_fits_of_every_subset() {
     // Each subset R² refitted by statsmodels OLS (tests/reference/make_references.py); ours
-    // come from the triangle of one QR of the unit-length centred columns, as in a run. Longley: TOTEMP on A = {GNPDEFL, GNP},
-    // B = {UNEMP, ARMED}, C = {POP, YEAR}; the full R² is the NIST certified 0.995479004577296.
+    // come from the triangle of one QR of the unit-length centred columns, as in a run.
+    // Longley: TOTEMP on A = {GNPDEFL, GNP}, B = {UNEMP, ARMED}, C = {POP, YEAR}; the full
+    // R² is the NIST certified 0.995479004577296.
     let expected = json("commonality.json");
     let (headers, columns) = longley();
     let column = |name: &str| columns[headers.iter().position(|h| h == name).unwrap()].clone();
