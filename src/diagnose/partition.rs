@@ -7,7 +7,7 @@ use nalgebra::DMatrix;
 use serde::{Deserialize, Serialize};
 
 use super::commonality;
-use super::triangle::{Gram, SubsetFit};
+use super::triangle::{SubsetFit, Triangle};
 
 /// Group of the onset and derivative regressors: the task's timing.
 pub const TASK: &str = "task";
@@ -61,7 +61,7 @@ impl RegressorPartition {
     }
 }
 
-/// A named group of predictors: positions of columns in a Gram matrix.
+/// A named group of predictors: positions of columns in the fitted matrix.
 #[derive(Debug, Clone)]
 pub struct Group {
     pub name: String,
@@ -69,7 +69,7 @@ pub struct Group {
 }
 
 /// Commonality components of column `target`'s R² on the union of `groups`, all subset
-/// R² taken from `fit` (a Gram matrix or the triangle of a QR). `None` if predictors are dependent.
+/// R² taken from `fit` (the triangle of a QR). `None` if predictors are dependent.
 pub fn partition(
     fit: &dyn SubsetFit,
     target: usize,
@@ -134,7 +134,8 @@ pub fn shares_by_group(groups: &[Group], components: &[Component]) -> Vec<GroupS
 }
 
 /// Commonality partition of `target`'s R² on named groups of raw predictor columns, in a
-/// regression with an intercept (every column is centred first).
+/// regression with an intercept (every column is centred first), with subset R² from the
+/// triangle of one QR of the unit-length columns, as for a run's design.
 pub fn partition_with_intercept(
     target: &[f64],
     groups: &[(&str, Vec<Vec<f64>>)],
@@ -160,5 +161,5 @@ pub fn partition_with_intercept(
         })
         .collect();
     let matrix = DMatrix::from_fn(rows, unit.len(), |r, c| unit[c][r]);
-    partition(&Gram(&matrix.tr_mul(&matrix)), 0, &named)
+    partition(&Triangle::of(&matrix), 0, &named)
 }

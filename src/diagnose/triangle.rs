@@ -1,24 +1,13 @@
-//! Subset R² without refitting, from one of two sources: blocks of a correlation (Gram)
-//! matrix — for a target t and predictors P, R²_t(P) = r_tPᵀ · R_PP⁻¹ · r_tP (all columns
-//! centred, unit length) — or the triangle of one QR of the columns, which keeps the
-//! digits the Gram matrix loses in badly conditioned designs.
+//! Subset R² without refitting, from the triangle of one QR of the columns, which keeps
+//! the digits the Gram (correlation) matrix loses in badly conditioned designs.
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::DMatrix;
 
 /// Where the R² of one column on a subset of the others comes from.
 pub trait SubsetFit {
     /// R² of column `target` on the columns `predictors`; `None` when the predictors are
     /// (numerically) dependent.
     fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64>;
-}
-
-/// The Gram matrix of centred, unit-length columns.
-pub struct Gram<'a>(pub &'a DMatrix<f64>);
-
-impl SubsetFit for Gram<'_> {
-    fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64> {
-        r_squared(self.0, target, predictors)
-    }
 }
 
 /// The R of a Householder QR of the columns, X = QR. Q has orthonormal columns, so any
@@ -86,51 +75,40 @@ impl SubsetFit for Triangle {
     }
 }
 
-/// R² of column `target` on the columns `predictors` of the Gram matrix `gram`.
-/// `None` when R_PP is not positive definite (an exact dependency among the predictors).
-pub fn r_squared(gram: &DMatrix<f64>, target: usize, predictors: &[usize]) -> Option<f64> {
-    if predictors.is_empty() {
-        return Some(0.0);
-    }
-    let block = DMatrix::from_fn(predictors.len(), predictors.len(), |i, j| {
-        gram[(predictors[i], predictors[j])]
-    });
-    let cross = DVector::from_fn(predictors.len(), |i, _| gram[(predictors[i], target)]);
-    let cholesky = block.cholesky()?;
-    let solved = cholesky.solve(&cross);
-    let r2 = cross.dot(&solved) / gram[(target, target)];
-    r2.is_finite().then_some(r2)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
+    use nalgebra::DVector;
+
+    /// R² by the normal equations on the Gram matrix, r_tPᵀ · R_PP⁻¹ · r_tP: the route
+    /// the triangle replaces, kept here only to show the digits it loses.
+    fn by_normal_equations(columns: &DMatrix<f64>, target: usize, predictors: &[usize]) -> f64 {
+        let gram = columns.tr_mul(columns);
+        let block = DMatrix::from_fn(predictors.len(), predictors.len(), |i, j| {
+            gram[(predictors[i], predictors[j])]
+        });
+        let cross = DVector::from_fn(predictors.len(), |i, _| gram[(predictors[i], target)]);
+        let solved = block.cholesky().unwrap().solve(&cross);
+        cross.dot(&solved) / gram[(target, target)]
+    }
 
     #[test]
     fn closed_form_with_two_predictors() {
         // r(y,x1) = .6, r(y,x2) = .4, r(x1,x2) = .3: R² = (r1² + r2² − 2·r1·r2·r12)/(1 − r12²)
-        // = 0.376/0.91 (shared research notes, commonality.exact_correlations).
-        let gram = DMatrix::from_row_slice(3, 3, &[1.0, 0.6, 0.4, 0.6, 1.0, 0.3, 0.4, 0.3, 1.0]);
-        assert_abs_diff_eq!(
-            r_squared(&gram, 0, &[1, 2]).unwrap(),
-            0.376 / 0.91,
-            epsilon = 1e-15
-        );
-        assert_abs_diff_eq!(r_squared(&gram, 0, &[1]).unwrap(), 0.36, epsilon = 1e-15);
-        assert_eq!(r_squared(&gram, 0, &[]), Some(0.0));
-    }
-
-    #[test]
-    fn the_triangle_gives_the_gram_values_and_keeps_digits_when_nearly_collinear() {
-        // Columns with the correlations of the closed form above: a Cholesky factor of the
-        // Gram matrix is one set of such columns.
+        // = 0.376/0.91 (shared research notes, commonality.exact_correlations). Columns with
+        // these correlations: a Cholesky factor of the correlation matrix is one set of them.
         let gram = DMatrix::from_row_slice(3, 3, &[1.0, 0.6, 0.4, 0.6, 1.0, 0.3, 0.4, 0.3, 1.0]);
         let columns = gram.clone().cholesky().unwrap().l().transpose();
         let triangle = Triangle::of(&columns);
         let two = triangle.r_squared(0, &[1, 2]).unwrap();
         assert_abs_diff_eq!(two, 0.376 / 0.91, epsilon = 1e-15);
         assert_abs_diff_eq!(triangle.r_squared(0, &[1]).unwrap(), 0.36, epsilon = 1e-15);
+        assert_eq!(triangle.r_squared(0, &[]), Some(0.0));
+    }
+
+    #[test]
+    fn the_triangle_keeps_digits_the_normal_equations_lose_when_nearly_collinear() {
         // x1 = u1 and x2 = (u1 + δ·u2)/√(1 + δ²) span the plane of u1, u2; y = (u2 + u3)/√2
         // has R² = 1/2 on them exactly, with r(y, x1) = 0. At δ = 1e-5 the predictors'
         // correlation matrix has condition number ~4e10, which the normal equations pay
@@ -156,7 +134,7 @@ mod tests {
             ],
         );
         let by_triangle = Triangle::of(&columns).r_squared(0, &[1, 2]).unwrap();
-        let by_gram = r_squared(&columns.tr_mul(&columns), 0, &[1, 2]).unwrap();
+        let by_gram = by_normal_equations(&columns, 0, &[1, 2]);
         assert!((by_triangle - 0.5).abs() < 1e-10, "{by_triangle}");
         assert!(
             (by_gram - 0.5).abs() > 100.0 * (by_triangle - 0.5).abs(),

@@ -127,3 +127,19 @@ pub fn trials_csv(
 pub fn exists(path: &Path) -> bool {
     path.exists()
 }
+
+/// The pairs of two lists compared element by element, after asserting that the lists are
+/// equally long: a zip stops at the shorter list, so without the check an empty or short
+/// result would compare as equal. `what` names the lists in the failure message.
+#[track_caller]
+pub fn paired<A, B>(a: A, b: B, what: &str) -> std::iter::Zip<A::IntoIter, B::IntoIter>
+where
+    A: IntoIterator,
+    B: IntoIterator,
+    A::IntoIter: ExactSizeIterator,
+    B::IntoIter: ExactSizeIterator,
+{
+    let (a, b) = (a.into_iter(), b.into_iter());
+    assert_eq!(a.len(), b.len(), "{what}: the two lists differ in length");
+    a.zip(b)
+}

@@ -24,6 +24,8 @@ Files
                                log-likelihood of a delta-rule learner on a fixed sequence
                                (plain Python loop) and its ML inverse temperature
                                (scipy.optimize.minimize_scalar)
+  computed.json                check values computed rather than printed: exact Longley GVIFs
+                               and a hand-checkable efficiency example (Python fractions)
 """
 
 from __future__ import annotations
@@ -37,6 +39,7 @@ import shutil
 import sys
 import tempfile
 import warnings
+from fractions import Fraction
 from pathlib import Path
 
 import numpy as np
@@ -809,6 +812,157 @@ def choice_references(out: Path) -> list[str]:
     return ["choice_likelihood.json"]
 
 
+# --------------------------------------------------------------------------- computed check values
+
+# The hand-checkable design of the efficiency check: X = [1, x1, x2] with x1 = [1, 1, -1, -1],
+# x2 = [1, 0, 0, -1] (invented so that every number can be checked by hand).
+EFFICIENCY_TOY_X = [[1, 1, 1], [1, 1, 0], [1, -1, 0], [1, -1, -1]]
+# Contrasts c (one row) whose efficiency 1 / (c (X'X)^-1 c') is tabulated, and one
+# two-row contrast C whose efficiency is 1 / trace(C (X'X)^-1 C').
+EFFICIENCY_TOY_CONTRASTS = {"c=[0,1,0]": [0, 1, 0], "c=[0,0,1]": [0, 0, 1],
+                            "c=[0,1,-1]": [0, 1, -1], "c=[0,1,1]": [0, 1, 1]}
+EFFICIENCY_TOY_TRACE_CONTRAST = ("C=[[0,1,0],[0,0,1]] (trace form)", [[0, 1, 0], [0, 0, 1]])
+# Longley predictor sets whose generalized VIF is tabulated (indices into LONGLEY_PREDICTORS).
+GVIF_EXACT_SETS = {"{GNP,POP}": [1, 4], "{GNPDEFL,GNP,POP,YEAR}": [0, 1, 4, 5],
+                   "{UNEMP,ARMED}": [2, 3]}
+
+
+def exact_determinant(rows) -> Fraction:
+    """Determinant of a square matrix of Fractions by Gaussian elimination, exactly."""
+    a = [list(row) for row in rows]
+    n = len(a)
+    det = Fraction(1)
+    for k in range(n):
+        pivot = next((i for i in range(k, n) if a[i][k] != 0), None)
+        if pivot is None:
+            return Fraction(0)
+        if pivot != k:
+            a[k], a[pivot] = a[pivot], a[k]
+            det = -det
+        det *= a[k][k]
+        for i in range(k + 1, n):
+            factor = a[i][k] / a[k][k]
+            for j in range(k, n):
+                a[i][j] -= factor * a[k][j]
+    return det
+
+
+def exact_inverse(rows) -> list:
+    """Inverse of a square matrix of Fractions by Gauss-Jordan elimination, exactly."""
+    n = len(rows)
+    a = [list(row) + [Fraction(int(i == j)) for j in range(n)] for i, row in enumerate(rows)]
+    for k in range(n):
+        pivot = next(i for i in range(k, n) if a[i][k] != 0)
+        a[k], a[pivot] = a[pivot], a[k]
+        head = a[k][k]
+        a[k] = [v / head for v in a[k]]
+        for i in range(n):
+            if i != k and a[i][k] != 0:
+                factor = a[i][k]
+                a[i] = [v - factor * w for v, w in zip(a[i], a[k])]
+    return [row[n:] for row in a]
+
+
+def quadratic(c, a, d) -> Fraction:
+    """c A d' for row vectors c, d."""
+    return sum(c[i] * a[i][j] * d[j] for i in range(len(c)) for j in range(len(d)))
+
+
+def computed_references(out: Path) -> list[str]:
+    # Generalized VIF of Longley predictor sets, exactly: the data's decimal values as
+    # Fractions, the centred cross-product matrix S, and GVIF = det(S_set) det(S_rest) / det(S)
+    # (Fox & Monette 1992 write it with the correlation matrix R; the column scalings of
+    # R = D S D cancel between numerator and denominator, so S gives the same value).
+    text = longley_csv_text(longley_frame())
+    rows = list(csv.reader(io.StringIO(text)))
+    check(rows[0] == LONGLEY_COLUMNS, "longley.csv header")
+    columns = [[Fraction(row[1 + j]) for row in rows[1:]] for j in range(len(LONGLEY_PREDICTORS))]
+    means = [sum(column) / len(column) for column in columns]
+    centred = [[v - m for v in column] for column, m in zip(columns, means)]
+    cross = [[sum(x * y for x, y in zip(a, b)) for b in centred] for a in centred]
+    full = exact_determinant(cross)
+
+    def block(members):
+        return [[cross[i][j] for j in members] for i in members]
+
+    numpy_corr = np.corrcoef(longley_frame()[LONGLEY_PREDICTORS].to_numpy(), rowvar=False)
+    gvif_exact = {}
+    for key, members in GVIF_EXACT_SETS.items():
+        rest = [j for j in range(len(LONGLEY_PREDICTORS)) if j not in members]
+        value = exact_determinant(block(members)) * exact_determinant(block(rest)) / full
+        df = len(members)
+        # independent route: numpy determinants of correlation blocks (longley_vif.json)
+        by_numpy = (np.linalg.det(numpy_corr[np.ix_(members, members)])
+                    * np.linalg.det(numpy_corr[np.ix_(rest, rest)]) / np.linalg.det(numpy_corr))
+        err = abs(by_numpy - float(value)) / float(value)
+        check(err < 1e-8, f"GVIF {key}: exact and numpy routes differ by {err:.3g} relative")
+        gvif_exact[key] = {"gvif": float(value), "gvif_pow_1_over_2df": float(value) ** (1.0 / (2 * df)),
+                           "df": df}
+    check(gvif_exact["{UNEMP,ARMED}"]["gvif"] == gvif_exact["{GNPDEFL,GNP,POP,YEAR}"]["gvif"],
+          "a set and its complement do not share their GVIF")
+
+    # Efficiency of contrasts of the hand-checkable design, exactly.
+    x = [[Fraction(v) for v in row] for row in EFFICIENCY_TOY_X]
+    p = len(x[0])
+    xtx = [[sum(row[i] * row[j] for row in x) for j in range(p)] for i in range(p)]
+    inverse = exact_inverse(xtx)
+    check(all(sum(xtx[i][k] * inverse[k][j] for k in range(p)) == int(i == j)
+              for i in range(p) for j in range(p)), "the exact inverse of X'X")
+    efficiency = {key: 1 / quadratic(c, inverse, c) for key, c in EFFICIENCY_TOY_CONTRASTS.items()}
+    key, rows_c = EFFICIENCY_TOY_TRACE_CONTRAST
+    efficiency[key] = 1 / sum(quadratic(c, inverse, c) for c in rows_c)
+    # the modulators centred (the intercept column is the mean)
+    predictors = [[row[j] for row in x] for j in range(1, p)]
+    centred_toy = [[v - sum(col) / len(col) for v in col] for col in predictors]
+    ss = [sum(v * v for v in col) for col in centred_toy]
+    product = sum(a * b for a, b in zip(*centred_toy))
+    r_squared = product * product / (ss[0] * ss[1])
+    vif = 1 / (1 - r_squared)
+    # the same columns without their correlation: Var(c b) = sum_j c_j^2 / ss_j
+    uncorrelated = {key: 1 / sum(Fraction(c[j + 1]) ** 2 / ss[j] for j in range(p - 1))
+                    for key, c in EFFICIENCY_TOY_CONTRASTS.items() if key != "c=[0,1,1]"}
+    by_numpy = np.linalg.inv(np.asarray(EFFICIENCY_TOY_X, float).T @ np.asarray(EFFICIENCY_TOY_X, float))
+    check(max_abs_err(by_numpy, [[float(v) for v in row] for row in inverse]) < 1e-14,
+          "numpy and the exact inverse of X'X disagree")
+
+    write_json(out / "computed.json", {
+        "about": ("Check values computed for the tests, not printed by any source: each entry says "
+                  "exactly how. Written by tests/reference/make_references.py (computed_references) "
+                  "with Python's fractions module, so every value is exact rational arithmetic "
+                  "rounded once to a float; --check recomputes them. Values a publication printed "
+                  "are in published.json."),
+        "gvif_longley": {
+            "source": ("exact rational arithmetic (Python fractions) on the Longley (1967) data as in "
+                       "longley.csv, each decimal read as a Fraction: S = centred cross-product matrix "
+                       "of the six predictors, GVIF = det(S_set) det(S_rest) / det(S) by exact Gaussian "
+                       "elimination (the Fox & Monette 1992 formula; the column scalings of the "
+                       "correlation matrix cancel); gvif_pow_1_over_2df = float(GVIF) ** (1 / (2 df)). "
+                       "Agrees with numpy determinants of correlation blocks to < 1e-8 relative."),
+            "expected": gvif_exact,
+        },
+        "efficiency_toy": {
+            "source": ("exact rational arithmetic (Python fractions): X'X, its inverse by Gauss-Jordan "
+                       "elimination, efficiency 1 / (c (X'X)^-1 c') of each contrast c (and "
+                       "1 / trace(C (X'X)^-1 C') for the two-row C), the definition of Dale (1999), "
+                       "Hum Brain Mapp 8:109-114; vif = 1 / (1 - r^2) of the centred x1, x2; "
+                       "centered_ss = sums of squares of the centred x1, x2; "
+                       "efficiency_with_no_correlation_same_ss = 1 / (sum_j c_j^2 / centered_ss_j), the "
+                       "efficiency the same contrasts would have if x1 and x2 were uncorrelated. "
+                       "Every value can be checked by hand."),
+            "input": {"X": matrix(EFFICIENCY_TOY_X)},
+            "expected": {
+                "XtX": [[float(v) for v in row] for row in xtx],
+                "XtX_inverse": [[float(v) for v in row] for row in inverse],
+                "vif": float(vif),
+                "centered_ss": [float(v) for v in ss],
+                "efficiency": {key: float(v) for key, v in efficiency.items()},
+                "efficiency_with_no_correlation_same_ss": {key: float(v) for key, v in uncorrelated.items()},
+            },
+        },
+    })
+    return ["computed.json"]
+
+
 # --------------------------------------------------------------------------- write / check
 
 def generate(out: Path) -> list[str]:
@@ -819,6 +973,7 @@ def generate(out: Path) -> list[str]:
     files += commonality_references(out)
     files += demo_references(out)
     files += choice_references(out)
+    files += computed_references(out)
     return files
 
 

@@ -1,8 +1,6 @@
 //! The binary on small fixtures: outputs, exit codes and the behaviour promised in the README.
 
-mod common;
-
-use common::{Lcg, StudyDir, regressor_names, study_toml, trials_csv};
+use crate::common::{Lcg, StudyDir, paired, regressor_names, study_toml, trials_csv};
 use predicates::prelude::*;
 use serde_json::Value;
 
@@ -120,12 +118,8 @@ fn a_modulator_equal_to_the_sum_of_two_others_is_an_exact_dependency() {
         dependency["regressors"],
         serde_json::json!(["whole:total", "parts:a", "parts:b"])
     );
-    for (got, want) in dependency["coefficients"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .zip([1.0, -1.0, -1.0])
-    {
+    let coefficients = dependency["coefficients"].as_array().unwrap();
+    for (got, want) in paired(coefficients, [1.0, -1.0, -1.0], "coefficients") {
         assert!((got.as_f64().unwrap() - want).abs() < 1e-6, "{dependency}");
     }
     // Inside the dependency: undefined. Outside it: finite.

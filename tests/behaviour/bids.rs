@@ -272,6 +272,11 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
     .unwrap_or_else(|e| panic!("{e}"));
     assert_eq!(bids.runs.len(), 60);
     assert_eq!(vifs(&bids), vifs(&flat));
+    assert_eq!(
+        bids.runs.len(),
+        flat.runs.len(),
+        "runs of the BIDS and flat demos"
+    );
     for (b, f) in bids.runs.iter().zip(&flat.runs) {
         fn codes(r: &tangle::report::RunReport) -> Vec<&str> {
             r.flags.iter().map(|f| f.code.as_ref()).collect()

@@ -1,9 +1,7 @@
 //! The signal partition on simulated regions built from known unique and shared parts:
 //! the partition must recover them within its stated (bootstrap) uncertainty.
 
-mod common;
-
-use common::{Lcg, StudyDir, study_toml, trials_csv};
+use crate::common::{Lcg, StudyDir, paired, study_toml, trials_csv};
 use tangle::check::{CheckOptions, check_file};
 use tangle::design::{DesignSettings, build_design};
 use tangle::files::{DiskFiles, read_text};
@@ -50,12 +48,8 @@ fn regressors(dir: &StudyDir) -> Vec<(String, Vec<f64>)> {
     let table = Table::read(&DiskFiles, &study.trials.file).unwrap();
     let runs = collect_runs(&study, &table, &scans).unwrap();
     let design = build_design(&DesignSettings::new(&study, true), &runs[0], None).unwrap();
-    design
-        .regressors
-        .iter()
-        .map(|r| r.name.clone())
-        .zip(design.sampled)
-        .collect()
+    let names = design.regressors.iter().map(|r| r.name.clone());
+    paired(names, design.sampled, "regressor names and columns").collect()
 }
 
 /// Writes one region: 1·cue + 2·a:x + 1.5·b:y + a slow cosine drift (inside the high-pass

@@ -1,11 +1,9 @@
 //! A trial table read a chunk at a time gives exactly the runs of the table read whole,
 //! and a row repeated in another chunk is still caught.
 
-mod common;
-
 use std::path::Path;
 
-use common::StudyDir;
+use crate::common::StudyDir;
 use tangle::files::{DiskFiles, read_text};
 use tangle::study::{Study, parse_study};
 use tangle::trials::{RunTrials, ScanTable, Table, collect_runs, read_runs};

@@ -1,9 +1,7 @@
 //! Bad input: every case exits with 1, names the file and the line/column or key, and
 //! never shows a panic.
 
-mod common;
-
-use common::{StudyDir, regressor_names, study_toml};
+use crate::common::{StudyDir, regressor_names, study_toml};
 
 const TRIALS: &str = "subject,run,cue_onset,outcome_onset,pe\n01,1,2.0,5.5,0.3\n01,1,12.0,16.0,-0.2\n01,1,22.0,24.5,0.5\n01,1,31.0,36.0,0.1\n";
 const MODEL: &str =

@@ -203,6 +203,11 @@ fn run_case(case_dir: &Path) -> Result<(), String> {
         None if case.exit == 1 => wrong.push("case.toml names no `fix` text".into()),
         None => {}
     }
+    assert_eq!(
+        case.unchanged.len(),
+        before.len(),
+        "unchanged files and their contents"
+    );
     for (file, old) in case.unchanged.iter().zip(before) {
         let new = std::fs::read(work.path().join(file)).ok();
         if new != old {

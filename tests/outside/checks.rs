@@ -4,6 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
+use crate::common::paired;
 use approx::assert_relative_eq;
 use serde_json::Value;
 use tangle::design::hrf::{canonical, canonical_derivative, sampled};
@@ -69,7 +70,7 @@ fn longley_vifs_match_statsmodels() {
         .collect();
     let result = with_intercept(&predictors, &chosen);
     assert!(result.dependencies.is_empty());
-    for (got, want) in result.vif.iter().zip(numbers(&expected["vif"])) {
+    for (got, want) in paired(&result.vif, numbers(&expected["vif"]), "Longley VIFs") {
         // The data's raw XᵀX has condition number ≈ 1e19; 1e-9 relative is far inside
         // what the routes agree to (stats-references.md §1).
         assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
@@ -82,11 +83,10 @@ fn hrf_samples_match_scipy_gamma() {
     // scipy.stats.gamma.pdf(t, 6) - gamma.pdf(t, 16)/6 at t = 0..32 s, and its derivative.
     let hrf = json("hrf.json");
     let unit = &hrf["unit_grid"];
-    for ((t, h), dh) in numbers(&unit["t"])
-        .iter()
-        .zip(numbers(&unit["h"]))
-        .zip(numbers(&unit["dh_dt"]))
-    {
+    let t = numbers(&unit["t"]);
+    let h = numbers(&unit["h"]);
+    let dh = numbers(&unit["dh_dt"]);
+    for ((t, h), dh) in paired(paired(&t, h, "t and h(t)"), dh, "h(t) and dh/dt") {
         // Absolute 1e-15 where the two gamma terms nearly cancel (zero crossing near 12 s).
         assert_relative_eq!(canonical(*t), h, max_relative = 1e-12, epsilon = 1e-15);
         assert_relative_eq!(
@@ -101,7 +101,7 @@ fn hrf_samples_match_scipy_gamma() {
     let (kernel, _) = sampled(micro["dt"].as_f64().unwrap());
     let expected = numbers(&micro["h_over_sum"]);
     assert_eq!(kernel.samples.len(), expected.len());
-    for (got, want) in kernel.samples.iter().zip(expected) {
+    for (got, want) in paired(&kernel.samples, expected, "microtime kernel") {
         assert_relative_eq!(*got, want, max_relative = 1e-12, epsilon = 1e-15);
     }
 }
@@ -121,22 +121,22 @@ fn design_columns_match_an_independent_numpy_build() {
     let expected_names = strings(&expected["regressors"]);
     assert_eq!(names, expected_names);
     for (key, columns) in [("sampled", &design.sampled), ("filtered", &design.filtered)] {
-        for (column, want) in columns.iter().zip(expected[key].as_array().unwrap()) {
-            for (got, want) in column.iter().zip(numbers(want)) {
+        for (column, want) in paired(columns, expected[key].as_array().unwrap(), key) {
+            for (got, want) in paired(column, numbers(want), key) {
                 assert_relative_eq!(*got, want, max_relative = 1e-9, epsilon = 1e-12);
             }
         }
     }
     let diagnostics = diagnose(&design);
-    for (got, want) in diagnostics.vif.iter().zip(numbers(&expected["vif"])) {
+    for (got, want) in paired(&diagnostics.vif, numbers(&expected["vif"]), "fixture VIFs") {
         assert_relative_eq!(got.unwrap(), want, max_relative = 1e-10);
     }
-    for (row, want) in diagnostics
-        .correlation
-        .iter()
-        .zip(expected["correlation"].as_array().unwrap())
-    {
-        for (got, want) in row.iter().zip(numbers(want)) {
+    for (row, want) in paired(
+        &diagnostics.correlation,
+        expected["correlation"].as_array().unwrap(),
+        "correlation rows",
+    ) {
+        for (got, want) in paired(row, numbers(want), "a correlation row") {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-10, epsilon = 1e-12);
         }
     }
@@ -150,7 +150,7 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
     let report = tangle::demo::check_demo(Default::default()).unwrap();
     let runs = expected["runs"].as_array().unwrap();
     assert_eq!(report.runs.len(), runs.len());
-    for (run, want) in report.runs.iter().zip(runs) {
+    for (run, want) in paired(&report.runs, runs, "demo runs") {
         assert_eq!(run.subject, want["subject"].as_str().unwrap());
         assert_eq!(run.run, want["run"].as_str().unwrap());
         let names: Vec<&str> = run
@@ -160,7 +160,7 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
             .collect();
         let expected_names = strings(&expected["regressors"]);
         assert_eq!(names, expected_names);
-        for (got, want) in run.vif.iter().zip(numbers(&want["vif"])) {
+        for (got, want) in paired(&run.vif, numbers(&want["vif"]), "a demo run's VIFs") {
             assert_relative_eq!(got.unwrap(), want, max_relative = 1e-9);
         }
     }
@@ -182,19 +182,28 @@ fn longley_condition_indices_and_proportions_match_a_numpy_svd() {
         design.push(columns[headers.iter().position(|h| h == name).unwrap()].clone());
     }
     let (indices, proportions) = belsley(&design).unwrap();
-    for (got, want) in indices.iter().zip(numbers(&expected["condition_indices"])) {
+    let expected_indices = numbers(&expected["condition_indices"]);
+    for (got, want) in paired(&indices, expected_indices, "condition indices") {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
-    for (row, want) in proportions.iter().zip(table_of(&expected["proportions"])) {
-        for (got, want) in row.iter().zip(want) {
+    let expected_proportions = table_of(&expected["proportions"]);
+    for (row, want) in paired(&proportions, expected_proportions, "proportion rows") {
+        for (got, want) in paired(row, want, "a proportion row") {
             assert_relative_eq!(*got, want, epsilon = 1e-9, max_relative = 1e-7);
         }
     }
     assert_relative_eq!(indices[6], 43275.0436, max_relative = 1e-8);
 }
 
+/// Values a named source printed (tests/reference/published.json).
 fn published() -> Value {
     json("published.json")
+}
+
+/// Values computed for the tests, each entry saying how (tests/reference/computed.json,
+/// written and re-checked by make_references.py).
+fn computed() -> Value {
+    json("computed.json")
 }
 
 fn with_ones(data: &Value, names: &[&str], rows: usize) -> Vec<Vec<f64>> {
@@ -210,17 +219,13 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
     let case = &published()["bkw_mtcars"];
     let columns = with_ones(&case["data"], &["disp", "hp", "wt", "drat"], 32);
     let (indices, proportions) = belsley(&columns).unwrap();
-    for (got, want) in indices
-        .iter()
-        .zip(numbers(&case["published"]["condition_indices"]))
-    {
+    let published_indices = numbers(&case["published"]["condition_indices"]);
+    for (got, want) in paired(&indices, published_indices, "mtcars condition indices") {
         assert!((got - want).abs() < 5e-7, "{got} vs {want}");
     }
-    for (row, want) in proportions
-        .iter()
-        .zip(table_of(&case["published"]["proportions"]))
-    {
-        for (got, want) in row.iter().zip(want) {
+    let published_proportions = table_of(&case["published"]["proportions"]);
+    for (row, want) in paired(&proportions, published_proportions, "mtcars rows") {
+        for (got, want) in paired(row, want, "an mtcars row") {
             assert!((got - want).abs() < 5e-7, "{got} vs {want}");
         }
     }
@@ -229,10 +234,8 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
     let case = &published()["bkw_bodyfat"];
     let columns = with_ones(&case["data"], &["triceps", "thigh", "midarm"], 20);
     let (indices, proportions) = belsley(&columns).unwrap();
-    for (got, want) in indices
-        .iter()
-        .zip(numbers(&case["published"]["condition_indices"]))
-    {
+    let published_indices = numbers(&case["published"]["condition_indices"]);
+    for (got, want) in paired(&indices, published_indices, "body fat condition indices") {
         assert!((got - want).abs() < 5e-7, "{got} vs {want}");
     }
     let by_variable =
@@ -250,9 +253,10 @@ fn bkw_tables_match_the_published_mtcars_and_body_fat_listings() {
 
 #[test]
 fn gvif_matches_exact_longley_values_and_the_published_duncan_example() {
-    // Longley sets: Fox & Monette (1992) formula with exact rational determinants (shared
-    // research notes, gvif.longley); a set and its complement share their GVIF.
-    let case = &published()["gvif_longley"]["expected"];
+    // Longley sets, computed: Fox & Monette (1992) formula with exact rational determinants
+    // (Python fractions in make_references.py, computed.json gvif_longley); a set and its
+    // complement share their GVIF.
+    let case = &computed()["gvif_longley"]["expected"];
     let (headers, columns) = longley();
     let predictors: Vec<Vec<f64>> = ["GNPDEFL", "GNP", "UNEMP", "ARMED", "POP", "YEAR"]
         .iter()
@@ -334,8 +338,8 @@ fn gvif_matches_exact_longley_values_and_the_published_duncan_example() {
 
 #[test]
 fn efficiency_of_a_hand_checkable_design() {
-    // X = [1, x1, x2], x1 = [1, 1, −1, −1], x2 = [1, 0, 0, −1] (shared research notes,
-    // efficiency.toy; Dale 1999 definition). By hand: XᵀX = [[4,0,0],[0,4,2],[0,2,2]],
+    // X = [1, x1, x2], x1 = [1, 1, −1, −1], x2 = [1, 0, 0, −1]; efficiency as defined by
+    // Dale (1999). Computed by hand: XᵀX = [[4,0,0],[0,4,2],[0,2,2]],
     // (XᵀX)⁻¹ = [[.25,0,0],[0,.5,−.5],[0,−.5,1]], so efficiency = 1/0.5 = 2 for x1,
     // 1/1 = 1 for x2, and 1/(0.5 + 1 + 2·0.5) = 0.4 for x1 − x2; r = 1/√2, VIF = 2.
     let x1 = vec![1.0, 1.0, -1.0, -1.0];
@@ -349,12 +353,40 @@ fn efficiency_of_a_hand_checkable_design() {
     assert_relative_eq!(efficiency, 0.4, max_relative = 1e-12);
     // Uncorrelated columns of the same sizes would give 1/4 + 1/2 = 0.75: 2.5 / 0.75.
     assert_relative_eq!(inflation, 2.5 / 0.75, max_relative = 1e-12);
+    // The same numbers computed by exact rational arithmetic (Python fractions in
+    // make_references.py, computed.json efficiency_toy).
+    let toy = &computed()["efficiency_toy"]["expected"];
+    let value = |key: &str| toy["efficiency"][key].as_f64().unwrap();
+    assert_relative_eq!(
+        result.vif[0].unwrap(),
+        toy["vif"].as_f64().unwrap(),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        result.efficiency[0].unwrap(),
+        value("c=[0,1,0]"),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(
+        result.efficiency[1].unwrap(),
+        value("c=[0,0,1]"),
+        max_relative = 1e-12
+    );
+    assert_relative_eq!(efficiency, value("c=[0,1,-1]"), max_relative = 1e-12);
+    let uncorrelated = toy["efficiency_with_no_correlation_same_ss"]["c=[0,1,-1]"]
+        .as_f64()
+        .unwrap();
+    assert_relative_eq!(
+        inflation,
+        uncorrelated / value("c=[0,1,-1]"),
+        max_relative = 1e-12
+    );
 }
 
 fn assert_components(got: &[tangle::diagnose::Component], want: &Value, tolerance: f64) {
     let want = want.as_array().unwrap();
     assert_eq!(got.len(), want.len());
-    for (got, want) in got.iter().zip(want) {
+    for (got, want) in paired(got, want, "components") {
         assert_eq!(got.groups, strings(&want["groups"]));
         let expected = want["share"].as_f64().unwrap();
         assert!(
@@ -369,8 +401,9 @@ fn assert_components(got: &[tangle::diagnose::Component], want: &Value, toleranc
 #[test]
 fn commonality_components_match_statsmodels_fits_of_every_subset() {
     // Each subset R² refitted by statsmodels OLS (tests/reference/make_references.py); ours
-    // come from blocks of one Gram matrix. Longley: TOTEMP on A = {GNPDEFL, GNP},
-    // B = {UNEMP, ARMED}, C = {POP, YEAR}; the full R² is the NIST certified 0.995479004577296.
+    // come from the triangle of one QR of the unit-length centred columns, as in a run.
+    // Longley: TOTEMP on A = {GNPDEFL, GNP}, B = {UNEMP, ARMED}, C = {POP, YEAR}; the full
+    // R² is the NIST certified 0.995479004577296.
     let expected = json("commonality.json");
     let (headers, columns) = longley();
     let column = |name: &str| columns[headers.iter().position(|h| h == name).unwrap()].clone();
@@ -423,18 +456,18 @@ fn model_overlap_matches_numpy_canonical_correlations() {
     let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
     let overlap = &report.runs[0].model_overlap[0];
     assert_eq!(overlap.models, ["a", "b"]);
-    for (got, want) in overlap
-        .canonical_correlations
-        .iter()
-        .zip(numbers(&expected["canonical_correlations"]))
-    {
+    for (got, want) in paired(
+        &overlap.canonical_correlations,
+        numbers(&expected["canonical_correlations"]),
+        "canonical correlations",
+    ) {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
-    for (got, want) in overlap
-        .explained
-        .iter()
-        .zip(numbers(&expected["explained"]))
-    {
+    for (got, want) in paired(
+        &overlap.explained,
+        numbers(&expected["explained"]),
+        "explained shares",
+    ) {
         assert_relative_eq!(*got, want, max_relative = 1e-9);
     }
 }
@@ -451,7 +484,8 @@ fn choice_probabilities_likelihood_and_fitted_temperature_match_scipy() {
         let beta = case["inverse_temperature"].as_f64().unwrap();
         let values = numbers(&case["values"]);
         let p = softmax(beta, &values);
-        for (i, (got, want)) in p.iter().zip(numbers(&case["probabilities"])).enumerate() {
+        let probabilities = numbers(&case["probabilities"]);
+        for (i, (got, want)) in paired(&p, probabilities, "probabilities").enumerate() {
             assert!(
                 (got - want).abs() <= 1e-12,
                 "β = {beta}, p[{i}]: {got} vs {want}"
@@ -467,11 +501,8 @@ fn choice_probabilities_likelihood_and_fitted_temperature_match_scipy() {
     let sequence = &expected["sequence"];
     let options = sequence["options"].as_u64().unwrap() as usize;
     let initial_value = sequence["initial_value"].as_f64().unwrap();
-    let run: Vec<ChoiceOutcome> = sequence["choices"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .zip(numbers(&sequence["rewards"]))
+    let choices = sequence["choices"].as_array().unwrap();
+    let run: Vec<ChoiceOutcome> = paired(choices, numbers(&sequence["rewards"]), "the sequence")
         .map(|(c, reward)| ChoiceOutcome {
             choice: c.as_u64().unwrap() as usize,
             reward,

@@ -2,14 +2,12 @@
 //! JSON output computed independently here, and studies unlike the demo (no models, no
 //! high-pass filter, temporal derivatives, nuisance regressors, one model uncentred).
 
-mod common;
-
 use assert_cmd::Command;
 use serde_json::Value;
 use tangle::check::CheckOptions;
 use tangle::render::methods;
 
-use common::{StudyDir, regressor_names, study_toml, trials_csv};
+use crate::common::{StudyDir, regressor_names, study_toml, trials_csv};
 
 fn demo_output(format: &str) -> Vec<u8> {
     let output = Command::cargo_bin("tangle")
@@ -244,7 +242,7 @@ columns = ["tx", "ty"]
         |_, _| Vec::new(),
     );
     study.file("trials.csv", &trials);
-    let mut rng = common::Lcg(7);
+    let mut rng = crate::common::Lcg(7);
     for subject in ["01", "02"] {
         let mut table = String::from("tx\tty\n");
         for _ in 0..120 {

@@ -29,12 +29,14 @@ proptest! {
             *value *= scale;
         }
         let rescaled = with_intercept(&names, &scaled);
+        prop_assert_eq!(base.vif.len(), rescaled.vif.len());
         for (a, b) in base.vif.iter().zip(&rescaled.vif) {
             prop_assert!((a.unwrap() - b.unwrap()).abs() <= 1e-6 * a.unwrap());
         }
         let mut reversed = columns.clone();
         reversed.reverse();
         let reordered = with_intercept(&names, &reversed);
+        prop_assert_eq!(base.vif.len(), reordered.vif.len());
         for (a, b) in base.vif.iter().zip(reordered.vif.iter().rev()) {
             prop_assert!((a.unwrap() - b.unwrap()).abs() <= 1e-6 * a.unwrap());
         }
@@ -88,10 +90,15 @@ proptest! {
         let mut reversed = scaled.clone();
         reversed.reverse();
         let other = with_intercept(&names, &reversed);
+        prop_assert_eq!(indices.len(), other.conditioning.condition_indices.len());
         for (a, b) in indices.iter().zip(&other.conditioning.condition_indices) {
             prop_assert!((a - b).abs() <= 1e-6 * a);
         }
         let count = columns.len();
+        prop_assert_eq!(
+            base.conditioning.variance_proportions.len(),
+            other.conditioning.variance_proportions.len()
+        );
         for (row_a, row_b) in base.conditioning.variance_proportions.iter().zip(&other.conditioning.variance_proportions) {
             for j in 0..count {
                 prop_assert!((row_a[j].unwrap() - row_b[count - 1 - j].unwrap()).abs() < 1e-6);
@@ -155,6 +162,7 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
 
     /// Projection of `target` onto the span of the design's included filtered columns.
     fn fitted(design: &Design, target: &[f64]) -> Vec<f64> {
+        assert_eq!(design.filtered.len(), design.included.len());
         let columns: Vec<&Vec<f64>> = design
             .filtered
             .iter()
@@ -179,7 +187,9 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
             let written = design(&values);
             let orthogonal = serial(&written);
             let target: Vec<f64> = (0..160).map(|i| ((i * 37) % 11) as f64 - 5.0).collect();
-            for (a, b) in fitted(&written, &target).iter().zip(fitted(&orthogonal, &target)) {
+            let (fit_written, fit_orthogonal) = (fitted(&written, &target), fitted(&orthogonal, &target));
+            prop_assert_eq!(fit_written.len(), fit_orthogonal.len());
+            for (a, b) in fit_written.iter().zip(fit_orthogonal) {
                 prop_assert!((a - b).abs() < 1e-8);
             }
             let (before, after) = (diagnose(&written), diagnose(&orthogonal));
