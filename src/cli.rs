@@ -5,6 +5,8 @@ use std::path::PathBuf;
 
 use clap::{Parser, Subcommand, ValueEnum};
 
+pub use crate::render::{ForecastFormat, Format};
+
 #[derive(Debug, Parser)]
 #[command(
     name = "tangle",
@@ -49,38 +51,33 @@ pub enum Command {
     },
     /// Before scanning: simulate learners on a planned task, fit them to the simulated
     /// choices, check every simulated design, and compare task variants.
-    Forecast {
-        /// The forecast spec (TOML).
-        spec: PathBuf,
-        /// Simulated participants (overrides the spec's `participants`).
-        #[arg(long, value_name = "N")]
-        participants: Option<usize>,
-        /// Seed of the simulation (overrides the spec's `seed`).
-        #[arg(long, value_name = "S")]
-        seed: Option<u64>,
-        /// Output format.
-        #[arg(long, value_enum, default_value_t = ForecastFormat::Table)]
-        format: ForecastFormat,
-        /// Write the output to this file (atomically) instead of standard output.
-        #[arg(long, value_name = "FILE")]
-        out: Option<PathBuf>,
-        /// Also write each variant's simulated trial table and a matching study file
-        /// into this folder (one subfolder per variant), for `tangle check`.
-        #[arg(long, value_name = "DIR")]
-        write_trials: Option<PathBuf>,
-        /// No progress bar on standard error.
-        #[arg(long)]
-        quiet: bool,
-    },
+    Forecast(ForecastArgs),
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum ForecastFormat {
-    Table,
-    Tsv,
-    Json,
-    /// A self-contained HTML page with a plot comparing the variants (use with --out).
-    Html,
+/// What `tangle forecast` is asked for.
+#[derive(Debug, clap::Args)]
+pub struct ForecastArgs {
+    /// The forecast spec (TOML).
+    pub spec: PathBuf,
+    /// Simulated participants (overrides the spec's `participants`).
+    #[arg(long, value_name = "N")]
+    pub participants: Option<usize>,
+    /// Seed of the simulation (overrides the spec's `seed`).
+    #[arg(long, value_name = "S")]
+    pub seed: Option<u64>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = ForecastFormat::Table)]
+    pub format: ForecastFormat,
+    /// Write the output to this file (atomically) instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Also write each variant's simulated trial table and a matching study file
+    /// into this folder (one subfolder per variant), for `tangle check`.
+    #[arg(long, value_name = "DIR")]
+    pub write_trials: Option<PathBuf>,
+    /// No progress bar on standard error.
+    #[arg(long)]
+    pub quiet: bool,
 }
 
 #[derive(Debug, clap::Args)]
@@ -125,17 +122,6 @@ pub struct OutputArgs {
 pub enum Orthogonalise {
     None,
     Serial,
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum Format {
-    Table,
-    Tsv,
-    Json,
-    /// A self-contained HTML report with plots (use with --out).
-    Html,
-    /// A paragraph for a paper's methods section.
-    Methods,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

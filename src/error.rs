@@ -202,6 +202,20 @@ impl Problems {
 
 pub type Result<T, E = Error> = std::result::Result<T, E>;
 
+/// The name in `known` most like `name`, if any is close enough to be a plausible typo
+/// (for "did you mean" hints): Jaro–Winkler similarity at least 0.75, or, for short
+/// names (which score low on Jaro–Winkler), one Damerau–Levenshtein edit away.
+pub fn closest_name<'a>(name: &str, known: &[&'a str]) -> Option<&'a str> {
+    known
+        .iter()
+        .map(|candidate| (strsim::jaro_winkler(name, candidate), *candidate))
+        .filter(|(score, candidate)| {
+            *score >= 0.75 || strsim::damerau_levenshtein(name, candidate) <= 1
+        })
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .map(|(_, candidate)| candidate)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -223,5 +237,11 @@ mod tests {
         let text = Error::Input(problems).to_string();
         assert!(text.starts_with("60 problems in the input:"));
         assert!(text.ends_with("... and 10 more problems not listed"));
+    }
+
+    #[test]
+    fn typos_find_the_closest_name() {
+        assert_eq!(closest_name("p_e", &["pe", "value"]), Some("pe"));
+        assert_eq!(closest_name("zzzz", &["pe", "value"]), None);
     }
 }

@@ -39,6 +39,7 @@
 //! # Ok::<(), tangle::Error>(())
 //! ```
 
+pub mod assess;
 pub mod bids;
 pub mod check;
 pub mod cli;
@@ -55,6 +56,7 @@ pub mod output;
 pub mod render;
 pub mod report;
 pub mod screen;
+pub mod settings;
 pub mod signal;
 pub mod study;
 pub mod toml_read;

@@ -7,15 +7,16 @@ use std::process::ExitCode;
 
 use clap::Parser;
 use indicatif::{ProgressBar, ProgressStyle};
-use tangle::check::{CheckOptions, check_file, prepare};
-use tangle::cli::{Cli, Command, FailOn, ForecastFormat, Format, Orthogonalise, OutputArgs};
+use tangle::check::{CheckOptions, check_file, prepare, stream_json};
+use tangle::cli::{Cli, Command, FailOn, ForecastArgs, Format, Orthogonalise, OutputArgs};
+use tangle::cohort::SubjectSummary;
 use tangle::error::Error;
 use tangle::files::DiskFiles;
 use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
-use tangle::render;
-use tangle::render::json::stream_check;
-use tangle::report::Report;
+use tangle::output::{deliver, print_to_stdout};
+use tangle::render::{check_report, forecast_report};
 use tangle::screen::Status;
+use tangle::settings::AnalysisOptions;
 use tangle::signal::BootstrapSettings;
 
 /// A whole-cohort check makes millions of small allocations across threads (a run's
@@ -39,28 +40,16 @@ fn run(cli: &Cli) -> ExitCode {
             check_streaming(study, output)
         }
         Command::Check { study, output } => check_file(&DiskFiles, study, options(output))
-            .and_then(|report| deliver(&report, output)),
+            .and_then(|report| {
+                deliver(check_report(&report, output.format), output.out.as_deref())?;
+                Ok(fail_on(&report.subjects, output))
+            }),
         Command::Merge { files, format, out } => merge(files, *format, out.as_deref()),
-        Command::Demo { output } => {
-            tangle::demo::check_demo(options(output)).and_then(|report| deliver(&report, output))
-        }
-        Command::Forecast {
-            spec,
-            participants,
-            seed,
-            format,
-            out,
-            write_trials,
-            quiet,
-        } => forecast(
-            spec,
-            *participants,
-            *seed,
-            *format,
-            out.as_deref(),
-            write_trials.as_deref(),
-            *quiet,
-        ),
+        Command::Demo { output } => tangle::demo::check_demo(options(output)).and_then(|report| {
+            deliver(check_report(&report, output.format), output.out.as_deref())?;
+            Ok(fail_on(&report.subjects, output))
+        }),
+        Command::Forecast(args) => forecast(args),
     };
     match result {
         Ok(code) => code,
@@ -74,19 +63,10 @@ fn run(cli: &Cli) -> ExitCode {
     }
 }
 
-#[allow(clippy::too_many_arguments)]
-fn forecast(
-    path: &Path,
-    participants: Option<usize>,
-    seed: Option<u64>,
-    format: ForecastFormat,
-    out: Option<&Path>,
-    write_trials: Option<&Path>,
-    quiet: bool,
-) -> tangle::Result<ExitCode> {
-    let spec = read_spec(&DiskFiles, path, participants, seed)?;
+fn forecast(args: &ForecastArgs) -> tangle::Result<ExitCode> {
+    let spec = read_spec(&DiskFiles, &args.spec, args.participants, args.seed)?;
     let total = (spec.participants * spec.variants.len()) as u64;
-    let bar = if quiet || !std::io::stderr().is_terminal() {
+    let bar = if args.quiet || !std::io::stderr().is_terminal() {
         ProgressBar::hidden()
     } else {
         let bar = ProgressBar::new(total);
@@ -99,46 +79,17 @@ fn forecast(
         bar
     };
     let options = ForecastOptions {
-        keep_participants: write_trials.is_some(),
+        keep_participants: args.write_trials.is_some(),
     };
     let result = run_forecast(&spec, options, &|| bar.inc(1));
     bar.finish_and_clear();
     let result = result?;
-    let report = &result.report;
-    let text = match format {
-        ForecastFormat::Table => render::forecast::table::render(report),
-        ForecastFormat::Tsv => render::forecast::tsv::render_joined(report),
-        ForecastFormat::Json => render::forecast::json(report),
-        ForecastFormat::Html => render::forecast::html::render(report),
-    };
-    if let Some(dir) = write_trials {
+    let document = forecast_report(&result.report, args.format);
+    if let Some(dir) = &args.write_trials {
         write_trial_folders(dir, &spec, &result)?;
     }
-    match (out, format) {
-        (Some(path), ForecastFormat::Tsv) => {
-            tangle::output::write_tables(path, &render::forecast::tsv::render(report), "variants")?
-        }
-        (Some(path), _) => tangle::output::write_atomically(path, &text)?,
-        (None, _) => print_to_stdout(&text)?,
-    }
+    deliver(document, args.out.as_deref())?;
     Ok(ExitCode::SUCCESS)
-}
-
-/// Standard output closed early (e.g. piped into `head`) is not an error: the reader has
-/// what it wanted.
-fn print_to_stdout(text: &str) -> tangle::Result<()> {
-    use std::io::Write;
-    let mut stdout = std::io::stdout().lock();
-    match stdout
-        .write_all(text.as_bytes())
-        .and_then(|()| stdout.flush())
-    {
-        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(Error::Output {
-            path: "standard output".into(),
-            source: err,
-        }),
-        _ => Ok(()),
-    }
 }
 
 /// `check --format json`: runs are written as they are checked, never all held at once.
@@ -149,7 +100,7 @@ fn check_streaming(study: &Path, output: &OutputArgs) -> tangle::Result<ExitCode
     // The writers take an I/O callback: the check's own outcome is kept beside it.
     let mut outcome = None;
     let mut write = |out: &mut dyn std::io::Write| -> std::io::Result<()> {
-        let result = stream_check(&prepared, &DiskFiles, out);
+        let result = stream_json(&prepared, &DiskFiles, out);
         let failed = result.is_err();
         outcome = Some(result);
         if failed {
@@ -195,23 +146,27 @@ fn merge(
         let text = tangle::files::read_text(&DiskFiles, path)?;
         shards.push((path.clone(), text));
     }
-    let mut merged = Vec::new();
-    tangle::merge::merge_json(&shards, &mut merged)?;
+    let merged = tangle::merge::merge(&shards)?;
     if format != Format::Json {
-        let report = tangle::merge::merged_report(&merged)?;
-        write_report(&report, format, out)?;
+        deliver(check_report(&merged.report()?, format), out)?;
         return Ok(ExitCode::SUCCESS);
     }
-    let text = String::from_utf8(merged)
-        .map_err(|_| Error::Internal("the merged report is not UTF-8".into()))?;
     match out {
-        Some(path) => tangle::output::write_atomically(path, &text)?,
-        None => print_to_stdout(&text)?,
+        Some(path) => tangle::output::write_atomically_with(path, &mut |out| {
+            merged
+                .write_json(out)
+                .map_err(|err| std::io::Error::other(err.to_string()))
+        })?,
+        None => {
+            let mut text = Vec::new();
+            merged.write_json(&mut text)?;
+            print_to_stdout(&text)?;
+        }
     }
     Ok(ExitCode::SUCCESS)
 }
 
-fn fail_on(subjects: &[tangle::screen::SubjectSummary], output: &OutputArgs) -> ExitCode {
+fn fail_on(subjects: &[SubjectSummary], output: &OutputArgs) -> ExitCode {
     let limit = output.fail_on.map(|level| match level {
         FailOn::Caution => Status::Caution,
         FailOn::Severe => Status::Severe,
@@ -226,37 +181,16 @@ fn fail_on(subjects: &[tangle::screen::SubjectSummary], output: &OutputArgs) -> 
 
 fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
-        centre: !output.no_centring,
-        orthogonalise: output.orthogonalise == Orthogonalise::Serial,
+        analysis: AnalysisOptions {
+            centre: !output.no_centring,
+            orthogonalise: output.orthogonalise == Orthogonalise::Serial,
+            bootstrap: BootstrapSettings {
+                resamples: output.resamples,
+                seed: output.seed,
+            },
+        },
         signal: output.signal.clone(),
         subjects: output.subjects.clone(),
         shard: output.shard,
-        bootstrap: BootstrapSettings {
-            resamples: output.resamples,
-            seed: output.seed,
-        },
     }
-}
-
-fn deliver(report: &Report, output: &OutputArgs) -> tangle::Result<ExitCode> {
-    write_report(report, output.format, output.out.as_deref())?;
-    Ok(fail_on(&report.subjects, output))
-}
-
-fn write_report(report: &Report, format: Format, out: Option<&Path>) -> tangle::Result<()> {
-    let text = match format {
-        Format::Table => render::table::render(report),
-        Format::Tsv => render::tsv::render_joined(report),
-        Format::Json => render::json::render(report),
-        Format::Html => render::html::render(report),
-        Format::Methods => render::methods::render(report),
-    };
-    match (out, format) {
-        (Some(path), Format::Tsv) => {
-            tangle::output::write_tables(path, &render::tsv::render(report), "regressors")?
-        }
-        (Some(path), _) => tangle::output::write_atomically(path, &text)?,
-        (None, _) => print_to_stdout(&text)?,
-    }
-    Ok(())
 }

@@ -1,26 +1,27 @@
 //! `tangle merge`: shard reports (the JSON of `check --shard K/N --format json`) combined
 //! into the report of the whole cohort. Runs are copied as written; the participant
-//! summaries and cohort views are recomputed with the functions `check` uses
-//! ([`crate::check::summarise`]).
+//! summaries and cohort views are recomputed from the runs' typed pieces by the cohort
+//! module, as `check` computes them.
 //!
 //! Runs are ordered by participant label (the order shards are assigned in) and, within
 //! a participant, as in their shard. For a trial table listed in label order, the merged
 //! report is byte for byte the unsharded one.
 
-use std::collections::HashMap;
+use std::collections::{HashMap, HashSet};
 use std::io::Write;
 use std::path::PathBuf;
 
 use serde::Deserialize;
 use serde_json::value::RawValue;
 
-use crate::check::{RunDigest, Summaries, summarise};
-use crate::diagnose::partition::{GroupShare, RegressorPartition};
+use crate::cohort::{RunDigest, Summaries, summarise};
+use crate::diagnose::RegressorPartition;
 use crate::error::{Error, Result};
-use crate::screen::{CLAIMS_NOTE, Status};
+use crate::render::json::{JsonStream, RenderedHead};
+use crate::report::{RegressorReport, Report, ReportHead, RunReport};
+use crate::screen::Status;
 
-/// One shard report as read: its head kept as text, its runs as text plus what the
-/// summaries need of them.
+/// One shard report as read: its head kept as text, its runs as text.
 #[derive(Deserialize)]
 struct ShardReport<'a> {
     #[serde(borrow)]
@@ -33,102 +34,44 @@ struct ShardReport<'a> {
     runs: Vec<&'a RawValue>,
 }
 
+/// The typed pieces of a run that the cohort views need.
 #[derive(Deserialize)]
 struct RunFields {
     subject: String,
     run: String,
     #[serde(default)]
     session: Option<String>,
-    status: String,
-    regressors: Vec<RegressorFields>,
+    status: Status,
+    regressors: Vec<RegressorReport>,
     vif: Vec<Option<f64>>,
     condition_indices: Vec<f64>,
-    partition: Vec<PartitionFields>,
+    partition: Vec<RegressorPartition>,
 }
 
-#[derive(Deserialize)]
-struct RegressorFields {
-    name: String,
-    kind: String,
-}
-
-#[derive(Deserialize)]
-struct PartitionFields {
-    regressor: String,
-    model: Option<String>,
-    r2: Option<f64>,
-    unique: Option<f64>,
-    shared_with: Vec<GroupFields>,
-}
-
-#[derive(Deserialize)]
-struct GroupFields {
-    group: String,
-    share: f64,
-}
-
-fn status(label: &str) -> Option<Status> {
-    match label {
-        "ok" => Some(Status::Ok),
-        "caution" => Some(Status::Caution),
-        "severe" => Some(Status::Severe),
-        _ => None,
+impl RunFields {
+    fn digest(&self) -> RunDigest {
+        RunDigest::new(
+            &self.subject,
+            &self.run,
+            self.status,
+            self.regressors.iter().map(|r| &r.regressor),
+            &self.vif,
+            &self.condition_indices,
+            &self.partition,
+        )
     }
 }
 
-fn digest(fields: RunFields) -> Option<RunDigest> {
-    let status = status(&fields.status)?;
-    let partition: Vec<RegressorPartition> = fields
-        .partition
-        .into_iter()
-        .map(|p| RegressorPartition {
-            regressor: p.regressor,
-            model: p.model,
-            r2: p.r2,
-            unique: p.unique,
-            components: Vec::new(),
-            shared_with: p
-                .shared_with
-                .into_iter()
-                .map(|g| GroupShare {
-                    group: g.group,
-                    share: g.share,
-                })
-                .collect(),
-        })
-        .collect();
-    let shared = partition
-        .iter()
-        .flat_map(|p| {
-            p.shared_with
-                .iter()
-                .filter(|g| {
-                    Some(&g.group) != p.model.as_ref()
-                        && g.group != crate::diagnose::partition::TASK
-                        && g.group != crate::diagnose::partition::NUISANCE
-                })
-                .map(|g| (p.regressor.clone(), g.group.clone(), g.share))
-        })
-        .collect();
-    Some(RunDigest {
-        subject: fields.subject,
-        run: fields.run,
-        status,
-        vifs: fields
-            .regressors
-            .iter()
-            .zip(&fields.vif)
-            .filter(|(r, _)| r.kind == "onset" || r.kind == "modulator")
-            .filter_map(|(r, v)| v.map(|v| (r.name.clone(), v)))
-            .collect(),
-        largest_condition_index: fields.condition_indices.last().copied(),
-        shared,
-        partition,
-    })
+/// The shards combined: the first shard's head, every run in report order, and the
+/// cohort views of them all.
+pub struct Merged<'a> {
+    head: ShardReport<'a>,
+    runs: Vec<&'a RawValue>,
+    pub summaries: Summaries,
 }
 
-/// The merged cohort report's JSON, from the shard files' `(name, text)`.
-pub fn merge_json(shards: &[(PathBuf, String)], out: &mut dyn Write) -> Result<Summaries> {
+/// Combines the shard files `(name, text)`.
+pub fn merge(shards: &[(PathBuf, String)]) -> Result<Merged<'_>> {
     if shards.is_empty() {
         return Err(Error::Usage("merge: no shard reports given".into()));
     }
@@ -160,10 +103,10 @@ pub fn merge_json(shards: &[(PathBuf, String)], out: &mut dyn Write) -> Result<S
         }
     }
     // Every run with the file it came from; participants may not span shards.
-    let mut runs: Vec<(String, usize, &RawValue, RunDigest)> = Vec::new();
+    let mut runs: Vec<(String, &RawValue, RunDigest)> = Vec::new();
     let mut file_of: HashMap<String, usize> = HashMap::new();
     for (file, (path, report)) in reports.iter().enumerate() {
-        let mut seen_here: HashMap<(String, String, Option<String>), ()> = HashMap::new();
+        let mut seen_here: HashSet<(String, String, Option<String>)> = HashSet::new();
         for (position, raw) in report.runs.iter().enumerate() {
             let fields: RunFields = serde_json::from_str(raw.get()).map_err(|err| {
                 usage(format!(
@@ -177,7 +120,7 @@ pub fn merge_json(shards: &[(PathBuf, String)], out: &mut dyn Write) -> Result<S
                 fields.run.clone(),
                 fields.session.clone(),
             );
-            if seen_here.insert(key, ()).is_some() {
+            if !seen_here.insert(key) {
                 return Err(usage(format!(
                     "{}: subject {} run {} appears twice",
                     path.display(),
@@ -198,69 +141,62 @@ pub fn merge_json(shards: &[(PathBuf, String)], out: &mut dyn Write) -> Result<S
                     file_of.insert(fields.subject.clone(), file);
                 }
             }
-            let subject = fields.subject.clone();
-            let digest = digest(fields).ok_or_else(|| {
-                usage(format!(
-                    "{}: run {} has an unknown status",
-                    path.display(),
-                    position + 1
-                ))
-            })?;
-            runs.push((subject, position, *raw, digest));
+            runs.push((fields.subject.clone(), *raw, fields.digest()));
         }
     }
     // Stable: within a participant, runs stay in their shard's order.
     runs.sort_by(|a, b| a.0.cmp(&b.0));
-    let io = |err: std::io::Error| Error::Output {
-        path: "the merged report".into(),
-        source: err,
+    let (runs, digests): (Vec<&RawValue>, Vec<RunDigest>) = runs
+        .into_iter()
+        .map(|(_, raw, digest)| (raw, digest))
+        .unzip();
+    let Some((_, head)) = reports.into_iter().next() else {
+        return Err(Error::Internal("merge: the shards vanished".into()));
     };
-    let write = |out: &mut dyn Write, bytes: &[u8]| out.write_all(bytes).map_err(io);
-    write(out, b"{\n  \"tool\": ")?;
-    write(out, first.tool.get().as_bytes())?;
-    write(out, b",\n  \"study\": ")?;
-    write(out, first.study.get().as_bytes())?;
-    write(out, b",\n  \"settings\": ")?;
-    write(out, first.settings.get().as_bytes())?;
-    write(out, b",\n  \"runs\": [")?;
-    for (index, (_, _, raw, _)) in runs.iter().enumerate() {
-        write(out, if index == 0 { b"\n    " } else { b",\n    " })?;
-        write(out, raw.get().as_bytes())?;
-    }
-    write(out, if runs.is_empty() { b"]" } else { b"\n  ]" })?;
-    let digests: Vec<RunDigest> = runs.into_iter().map(|(_, _, _, d)| d).collect();
-    let summaries = summarise(&digests);
-    let mut tail = Vec::new();
-    tail.extend_from_slice(b",\n  \"subjects\": ");
-    indented(&mut tail, &summaries.subjects)?;
-    tail.extend_from_slice(b",\n  \"cohort\": ");
-    indented(&mut tail, &summaries.cohort)?;
-    tail.extend_from_slice(b",\n  \"subject_partition\": ");
-    indented(&mut tail, &summaries.subject_partition)?;
-    tail.extend_from_slice(b",\n  \"cohort_partition\": ");
-    indented(&mut tail, &summaries.cohort_partition)?;
-    tail.extend_from_slice(b",\n  \"claims_note\": ");
-    indented(&mut tail, &CLAIMS_NOTE)?;
-    tail.extend_from_slice(b"\n}\n");
-    write(out, &tail)?;
-    Ok(summaries)
+    Ok(Merged {
+        head,
+        runs,
+        summaries: summarise(&digests),
+    })
 }
 
-fn indented<T: serde::Serialize>(out: &mut Vec<u8>, value: &T) -> Result<()> {
-    let text = serde_json::to_vec_pretty(value)
-        .map_err(|err| Error::Internal(format!("cannot render the merged report: {err}")))?;
-    for (index, line) in text.split(|&b| b == b'\n').enumerate() {
-        if index > 0 {
-            out.extend_from_slice(b"\n  ");
+impl Merged<'_> {
+    /// The merged report's JSON: the runs copied as the shards hold them.
+    pub fn write_json(&self, out: &mut dyn Write) -> Result<()> {
+        let io = |source: std::io::Error| Error::Output {
+            path: "the merged report".into(),
+            source,
+        };
+        let head = RenderedHead {
+            tool: self.head.tool.get().as_bytes(),
+            study: self.head.study.get().as_bytes(),
+            settings: self.head.settings.get().as_bytes(),
+        };
+        let mut stream = JsonStream::begin_rendered(out, head).map_err(io)?;
+        for raw in &self.runs {
+            stream.rendered_run(raw.get().as_bytes()).map_err(io)?;
         }
-        out.extend_from_slice(line);
+        stream.finish(&self.summaries).map_err(io)?;
+        Ok(())
     }
-    Ok(())
-}
 
-/// The merged report as the report model, for the formats other than JSON: read back
-/// from the merged JSON, so every format shows exactly the numbers the JSON holds.
-pub fn merged_report(merged_json: &[u8]) -> Result<crate::report::Report> {
-    serde_json::from_slice(merged_json)
-        .map_err(|err| Error::Internal(format!("cannot read back the merged report: {err}")))
+    /// The merged report as the report model, for the formats other than JSON: every
+    /// run read from the shards, the cohort views as merged.
+    pub fn report(&self) -> Result<Report> {
+        let unreadable = |err: serde_json::Error| {
+            Error::Usage(format!("merge: a shard report cannot be read ({err})"))
+        };
+        let head = ReportHead {
+            tool: serde_json::from_str(self.head.tool.get()).map_err(unreadable)?,
+            study: serde_json::from_str(self.head.study.get()).map_err(unreadable)?,
+            settings: serde_json::from_str(self.head.settings.get()).map_err(unreadable)?,
+        };
+        let runs = self
+            .runs
+            .iter()
+            .map(|raw| serde_json::from_str::<RunReport>(raw.get()))
+            .collect::<std::result::Result<Vec<_>, _>>()
+            .map_err(unreadable)?;
+        Ok(Report::new(head, runs, self.summaries.clone()))
+    }
 }

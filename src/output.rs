@@ -5,6 +5,32 @@ use std::io::Write;
 use std::path::Path;
 
 use crate::error::{Error, Result};
+use crate::render::Document;
+
+/// Writes a rendered report to `out`, or to standard output.
+pub fn deliver(document: Document, out: Option<&Path>) -> Result<()> {
+    match (document, out) {
+        (Document::Text(text), Some(path)) => write_atomically(path, &text),
+        (Document::Text(text), None) => print_to_stdout(text.as_bytes()),
+        (Document::Tables { tables, main, .. }, Some(path)) => write_tables(path, &tables, main),
+        (Document::Tables { tables, joined, .. }, None) => {
+            print_to_stdout(joined(&tables).as_bytes())
+        }
+    }
+}
+
+/// Standard output closed early (e.g. piped into `head`) is not an error: the reader has
+/// what it wanted.
+pub fn print_to_stdout(bytes: &[u8]) -> Result<()> {
+    let mut stdout = std::io::stdout().lock();
+    match stdout.write_all(bytes).and_then(|()| stdout.flush()) {
+        Err(err) if err.kind() != std::io::ErrorKind::BrokenPipe => Err(Error::Output {
+            path: "standard output".into(),
+            source: err,
+        }),
+        _ => Ok(()),
+    }
+}
 
 pub fn write_atomically(path: &Path, contents: &str) -> Result<()> {
     write_atomically_with(path, &mut |out| out.write_all(contents.as_bytes()))

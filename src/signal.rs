@@ -209,16 +209,16 @@ fn stream(seed: u64, labels: &[&str]) -> u64 {
     hash
 }
 
-/// Partitions every region of `table` on the run's analysed design columns.
+/// Partitions every region of `table` on the run's analysed design columns; each
+/// region is filtered by the design's own drift basis first.
 pub fn partition_signals(
-    settings: &crate::design::DesignSettings,
     design: &crate::design::Design,
     diagnostics: &crate::diagnose::Diagnostics,
     table: &crate::trials::PerScanTable,
     bootstrap: BootstrapSettings,
 ) -> Vec<RegionPartition> {
     use crate::design::RegressorKind;
-    let drift = DriftBasis::new(design.scans, settings.tr, settings.high_pass);
+    let drift = &design.drift;
     let analysed = &diagnostics.analysed;
     let columns = DMatrix::from_fn(design.scans, analysed.len(), |r, c| {
         let column = &design.filtered[analysed[c]];
@@ -250,15 +250,7 @@ pub fn partition_signals(
             let y = drift.residualise(values);
             let seed = stream(bootstrap.seed, &[&design.subject, &design.run, region]);
             let settings = BootstrapSettings { seed, ..bootstrap };
-            partition_region(
-                region,
-                columns.clone(),
-                &base,
-                &groups,
-                &y,
-                &drift,
-                settings,
-            )
+            partition_region(region, columns.clone(), &base, &groups, &y, drift, settings)
         })
         .collect()
 }

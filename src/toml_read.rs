@@ -95,7 +95,7 @@ impl<'a> TomlReader<'a> {
             } else {
                 format!("in [{section}]")
             };
-            let hint = match crate::study::closest_name(name, valid) {
+            let hint = match crate::error::closest_name(name, valid) {
                 Some(near) => format!("did you mean `{near}`?"),
                 None => format!("valid keys here: {}", valid.join(", ")),
             };

@@ -13,7 +13,7 @@ use super::{RUN_COLUMN, SUBJECT_COLUMN};
 use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::files::InputFiles;
 use crate::flags::{Flag, Severity};
-use crate::study::{BidsSource, ScanCounts, Study};
+use crate::study::{BidsSource, LabelColumns, MAX_PLAUSIBLE_TR, ScanCounts, Study};
 use crate::trials::{RunTrials, ScanTable, Table, collect_runs};
 
 /// Largest difference between two TRs that still counts as agreement (seconds).
@@ -27,12 +27,12 @@ struct Acquired {
     flags: Vec<Flag>,
 }
 
-/// The study with its TR filled in from the data (or the study file), and its runs.
+/// The study's TR (from the data, or the study file's override) and its runs.
 pub fn collect_bids_runs(
     files: &dyn InputFiles,
     study: &Study,
     source: &BidsSource,
-) -> Result<(Study, Vec<RunTrials>)> {
+) -> Result<(f64, Vec<RunTrials>)> {
     let found = find_runs(files, source)?;
     let mut problems = Problems::default();
     let mut read = Vec::new();
@@ -44,13 +44,14 @@ pub fn collect_bids_runs(
         }
     }
     let read = problems.finish(read)?;
-    let tr = match source.tr {
+    let tr = match study.acquisition.tr {
         Some(tr) => tr,
         None => common_tr(&read)?,
     };
-    let mut resolved = study.clone();
-    resolved.acquisition.tr = tr;
-    resolved.acquisition.scans = ScanCounts::Fixed(read.first().map_or(0, |r| r.2.scans));
+    let labels = LabelColumns {
+        subject: SUBJECT_COLUMN.into(),
+        run: RUN_COLUMN.into(),
+    };
     let mut problems = Problems::default();
     let mut runs = Vec::new();
     for (files_of_run, table, acquired) in read {
@@ -62,7 +63,8 @@ pub fn collect_bids_runs(
             path: files_of_run.events.clone(),
             counts,
         };
-        if let Some(mut collected) = problems.keep(collect_runs(&resolved, &table, &scans)) {
+        if let Some(mut collected) = problems.keep(collect_runs(study, &labels, tr, &table, &scans))
+        {
             for run in &mut collected {
                 run.session = files_of_run.session.clone();
                 run.flags.extend(acquired.flags.iter().cloned());
@@ -71,7 +73,7 @@ pub fn collect_bids_runs(
         }
     }
     let runs = problems.finish(runs)?;
-    Ok((resolved, runs))
+    Ok((tr, runs))
 }
 
 /// The events file with the subject and run labels as columns, joined to its model
@@ -92,9 +94,6 @@ fn events_table(files: &dyn InputFiles, source: &BidsSource, run: &RunFiles) -> 
 }
 
 /// TR and volumes of one run, with flags where the study file overrides the data.
-/// A TR above this many seconds is taken for one written in milliseconds.
-const MAX_PLAUSIBLE_TR: f64 = 100.0;
-
 fn acquisition(
     files: &dyn InputFiles,
     study: &Study,
@@ -106,7 +105,7 @@ fn acquisition(
     let sidecar = resolve_sidecar(files, &source.root, &image_name)?;
     let mut flags = Vec::new();
     let data_tr = sidecar.positive_number("RepetitionTime")?;
-    let (tr, tr_source) = match (source.tr, data_tr) {
+    let (tr, tr_source) = match (study.acquisition.tr, data_tr) {
         (Some(given), Some((found, file))) => {
             if (given - found).abs() > TR_TOLERANCE {
                 flags.push(Flag::new(
@@ -148,7 +147,7 @@ fn acquisition(
         Some(path) => Some((read_image_header(files, path)?, path.clone())),
         None => None,
     };
-    let scans = match (source.scans, &header) {
+    let scans = match (fixed_scans(study), &header) {
         (Some(given), Some((header, path))) => {
             if given != header.volumes {
                 flags.push(Flag::new(
@@ -198,6 +197,14 @@ fn acquisition(
         scans,
         flags,
     })
+}
+
+/// The study file's override of every run's volumes, if it gives one.
+fn fixed_scans(study: &Study) -> Option<usize> {
+    match study.acquisition.scans {
+        Some(ScanCounts::Fixed(scans)) => Some(scans),
+        _ => None,
+    }
 }
 
 /// A note suggesting the sampling reference that matches the middle of the slice

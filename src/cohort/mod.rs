@@ -1,6 +1,93 @@
-//! The cohort views: every run reduced to a digest, participants summarised over their
-//! runs, and the partition of shared and unique variance across participants.
+//! The cohort views: every run reduced to a [`RunDigest`], participants summarised over
+//! their runs, participants counted by status, and the partition of shared and unique
+//! variance across participants. `check`, `merge` and the forecast all count and
+//! summarise here.
 
+mod digest;
 pub mod partition;
+mod subjects;
 
+pub use digest::RunDigest;
 pub use partition::{CohortShare, ParticipantShare};
+pub use subjects::{SharedShare, SubjectSummary, summarise_subjects};
+
+use serde::{Deserialize, Serialize};
+
+use crate::screen::Status;
+
+/// Participants (or simulated participants) counted by status.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct StatusCounts {
+    pub ok: usize,
+    pub caution: usize,
+    pub severe: usize,
+}
+
+impl StatusCounts {
+    pub fn of(statuses: impl IntoIterator<Item = Status>) -> Self {
+        let mut counts = StatusCounts::default();
+        for status in statuses {
+            counts.add(status);
+        }
+        counts
+    }
+
+    pub fn add(&mut self, status: Status) {
+        match status {
+            Status::Ok => self.ok += 1,
+            Status::Caution => self.caution += 1,
+            Status::Severe => self.severe += 1,
+        }
+    }
+
+    pub fn total(&self) -> usize {
+        self.ok + self.caution + self.severe
+    }
+
+    /// Those at `status` or worse.
+    pub fn at_least(&self, status: Status) -> usize {
+        match status {
+            Status::Ok => self.total(),
+            Status::Caution => self.caution + self.severe,
+            Status::Severe => self.severe,
+        }
+    }
+}
+
+/// The cohort's size and its participants by status.
+#[derive(Debug, Clone, Default, Serialize, Deserialize)]
+pub struct Cohort {
+    pub subjects: usize,
+    pub runs: usize,
+    #[serde(flatten)]
+    pub statuses: StatusCounts,
+}
+
+/// The cohort views of a report, computed from every run's [`RunDigest`].
+#[derive(Debug, Clone)]
+pub struct Summaries {
+    pub subjects: Vec<SubjectSummary>,
+    pub cohort: Cohort,
+    pub subject_partition: Vec<ParticipantShare>,
+    pub cohort_partition: Vec<CohortShare>,
+}
+
+/// The cohort views of the runs `digests`, in report order.
+pub fn summarise(digests: &[RunDigest]) -> Summaries {
+    let subjects = summarise_subjects(digests);
+    let by_run: Vec<(&str, &[crate::diagnose::RegressorPartition])> = digests
+        .iter()
+        .map(|r| (r.subject.as_str(), r.partition.as_slice()))
+        .collect();
+    let subject_partition = partition::participant_means(&by_run);
+    Summaries {
+        cohort: Cohort {
+            subjects: subjects.len(),
+            runs: digests.len(),
+            statuses: StatusCounts::of(subjects.iter().map(|s| s.status)),
+        },
+        cohort_partition: partition::summarise(&subject_partition),
+        subject_partition,
+        subjects,
+    }
+}

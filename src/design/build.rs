@@ -8,41 +8,47 @@ use super::regressors::{Grid, event_regressor};
 use super::{Design, EventSummary, Regressor, RegressorKind, TrialValues};
 use crate::error::{Error, Location, Problem};
 use crate::flags::{Flag, Severity};
-use crate::study::{ModelSpec, Study};
+use crate::study::ModelSpec;
 use crate::trials::{EventTrials, NuisanceTable, RunTrials};
 
-/// Everything about how designs are built that is the same for every run.
-#[derive(Debug, Clone)]
-pub struct DesignSettings {
+/// How every run's design is built: the study's choices and the user's, the same for
+/// every run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DesignSpec {
+    /// Repetition time in seconds.
     pub tr: f64,
+    /// Microtime bins per TR.
     pub microtime: usize,
+    /// Where in the TR each scan is sampled, as a fraction of the TR.
     pub reference: f64,
+    /// High-pass cutoff in seconds; 0 turns the drift basis off.
     pub high_pass: f64,
+    /// Add the temporal derivative of every onset and modulator regressor.
     pub derivative: bool,
     /// Mean-centre parametric modulators within run and event (the default).
     pub centre: bool,
     pub models: Vec<ModelSpec>,
-    /// The trial table, named in messages about a run.
-    pub trial_file: PathBuf,
+    /// Where the runs come from (the trial table or the BIDS dataset), named in
+    /// messages about a run.
+    pub source: PathBuf,
+}
+
+/// A [`DesignSpec`] with what every run shares made once: the sampled response
+/// kernels and the drift bases of each run length.
+#[derive(Debug)]
+pub struct DesignSettings {
+    pub spec: DesignSpec,
     response: Kernel,
     response_derivative: Kernel,
     drift: DriftBases,
 }
 
 impl DesignSettings {
-    pub fn new(study: &Study, centre: bool) -> Self {
-        let acquisition = &study.acquisition;
-        let dt = acquisition.tr / acquisition.microtime as f64;
+    pub fn new(spec: DesignSpec) -> Self {
+        let dt = spec.tr / spec.microtime as f64;
         let (response, response_derivative) = sampled(dt);
         DesignSettings {
-            tr: acquisition.tr,
-            microtime: acquisition.microtime,
-            reference: acquisition.reference,
-            high_pass: study.high_pass,
-            derivative: study.hrf.derivative,
-            centre,
-            models: study.models.clone(),
-            trial_file: study.trials.file.clone(),
+            spec,
             response,
             response_derivative,
             drift: DriftBases::default(),
@@ -63,13 +69,9 @@ pub fn build_design(
     run: &RunTrials,
     nuisance: Option<&NuisanceTable>,
 ) -> Result<Design, Error> {
-    let grid = Grid::new(
-        settings.tr,
-        run.scans,
-        settings.microtime,
-        settings.reference,
-    );
-    let run_end = run.scans as f64 * settings.tr;
+    let spec = &settings.spec;
+    let grid = Grid::new(spec.tr, run.scans, spec.microtime, spec.reference);
+    let run_end = run.scans as f64 * spec.tr;
     let mut flags = run.flags.clone();
 
     // Trials starting after the last scan cannot affect the data: leave them out.
@@ -113,25 +115,25 @@ pub fn build_design(
         });
     }
     let mut trial_values = Vec::new();
-    for model in &settings.models {
-        for spec in &model.modulators {
+    for model in &spec.models {
+        for modulator in &model.modulators {
             let Some((index, event)) = run
                 .events
                 .iter()
                 .enumerate()
-                .find(|(_, e)| e.name == spec.event)
+                .find(|(_, e)| e.name == modulator.event)
             else {
                 continue;
             };
             let Some(values) = event
                 .modulators
                 .iter()
-                .find(|m| m.model == model.name && m.column == spec.column)
+                .find(|m| m.model == model.name && m.column == modulator.column)
             else {
                 continue;
             };
-            let name = modulator_name(model, &spec.column, &spec.event);
-            let heights = modulator_heights(&values.values, &kept[index], settings.centre);
+            let name = modulator_name(model, &modulator.column, &modulator.event);
+            let heights = modulator_heights(&values.values, &kept[index], spec.centre);
             let usable_values: Vec<Option<f64>> = values
                 .values
                 .iter()
@@ -158,7 +160,7 @@ pub fn build_design(
                     kind: RegressorKind::Modulator,
                     event: Some(event.name.clone()),
                     model: Some(model.name.clone()),
-                    column: Some(spec.column.clone()),
+                    column: Some(modulator.column.clone()),
                 },
                 event: index,
                 heights,
@@ -174,7 +176,7 @@ pub fn build_design(
         (&settings.response, false),
         (&settings.response_derivative, true),
     ] {
-        if derivative && !settings.derivative {
+        if derivative && !spec.derivative {
             continue;
         }
         for item in &pending {
@@ -215,13 +217,11 @@ pub fn build_design(
         }
     }
 
-    let drift = settings
-        .drift
-        .get(run.scans, settings.tr, settings.high_pass);
+    let drift = settings.drift.get(run.scans, spec.tr, spec.high_pass);
     let in_model = included.iter().filter(|&&i| i).count() + drift.len();
     if in_model > run.scans {
         return Err(Problem::new(
-            Location::file(&settings.trial_file),
+            Location::file(&spec.source),
             format!(
                 "subject {} run {}: the design has {in_model} columns ({} regressors + {} drift and constant) but only {} scans",
                 run.subject,
@@ -268,7 +268,7 @@ pub fn build_design(
         sampled: sampled_columns,
         filtered,
         included,
-        drift_columns: drift.len(),
+        drift,
         trial_values,
         flags,
     })

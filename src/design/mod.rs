@@ -8,7 +8,7 @@ pub mod hrf;
 pub mod orthogonalise;
 pub mod regressors;
 
-pub use build::{DesignSettings, build_design};
+pub use build::{DesignSettings, DesignSpec, build_design};
 
 use serde::{Deserialize, Serialize};
 
@@ -61,8 +61,9 @@ pub struct Design {
     pub filtered: Vec<Vec<f64>>,
     /// `false` for regressors left out of the design (e.g. a constant modulator).
     pub included: Vec<bool>,
-    /// Number of drift columns projected out, the constant included.
-    pub drift_columns: usize,
+    /// The constant and cosine drift columns projected out of every regressor (and of
+    /// any measured signal of the run).
+    pub drift: std::sync::Arc<filter::DriftBasis>,
     /// Trial-level (centred) modulator heights, for trial-level correlations.
     pub trial_values: Vec<TrialValues>,
     /// Each event's trials inside the run and their durations.

@@ -53,6 +53,14 @@ impl RegressorPartition {
         }
     }
 
+    /// The shares held with another model: every group but the regressor's own model,
+    /// the task and nuisance.
+    pub fn shared_with_other_models(&self) -> impl Iterator<Item = &GroupShare> {
+        self.shared_with.iter().filter(move |g| {
+            Some(&g.group) != self.model.as_ref() && g.group != TASK && g.group != NUISANCE
+        })
+    }
+
     pub fn shared_with(&self, group: &str) -> Option<f64> {
         self.shared_with
             .iter()

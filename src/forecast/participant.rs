@@ -4,19 +4,15 @@
 //! trial-wise quantities at their fitted parameters, then the same design check a
 //! study gets.
 
-use std::path::PathBuf;
-
 use super::fit::{Fit, fit_learner};
 use super::learners::{ChoiceOutcome, Learner, LearnerModel, TrialQuantities};
 use super::simulate::{Persona, RunPlan, Stream, behave, plan_run, stream};
 use super::spec::{ForecastSpec, TaskVariant};
-use crate::check::{CheckOptions, assess_run};
-use crate::design::DesignSettings;
+use crate::assess::assess_run;
+use crate::design::DesignSpec;
 use crate::report::RunReport;
-use crate::study::{
-    Acquisition, Duration, EventSpec, HrfSettings, ModelSpec, ModulatorSpec, ScanCounts, Study,
-    TrialSource,
-};
+use crate::settings::{AnalysisOptions, RunSettings};
+use crate::study::{ModelSpec, ModulatorSpec};
 use crate::trials::{EventTrials, ModulatorValues, RunTrials};
 
 /// Event names and trial-table columns of a simulated study.
@@ -108,43 +104,17 @@ pub fn simulate(
     }
 }
 
-/// The study a real analysis of this variant would write: a cue and an outcome event,
-/// and one model per candidate learner with its quantities as modulators.
-pub fn study_for(spec: &ForecastSpec, variant: &TaskVariant) -> Study {
-    let task = &variant.task;
-    let event = |name: &str, onset: &str, duration: f64| EventSpec {
-        name: name.into(),
-        onset_column: onset.into(),
-        duration: Duration::Seconds(duration),
-        selector: None,
-    };
-    Study {
-        name: format!("{} ({})", spec.name, variant.name),
-        path: spec.path.clone(),
-        acquisition: Acquisition {
-            tr: task.tr,
-            scans: match task.scans {
-                crate::forecast::spec::RunLength::Fixed(n) => ScanCounts::Fixed(n),
-                crate::forecast::spec::RunLength::AfterLastOutcome(_) => {
-                    ScanCounts::File(PathBuf::from("scans.csv"))
-                }
-            },
-            microtime: spec.design.microtime,
-            reference: spec.design.reference,
-        },
+/// The run settings a real analysis of this variant would use: the spec's design and
+/// thresholds, modulators mean-centred, one model per candidate learner with its
+/// quantities as modulators of the cue or the outcome.
+pub fn settings_for(spec: &ForecastSpec, variant: &TaskVariant) -> RunSettings {
+    let design = DesignSpec {
+        tr: variant.task.tr,
+        microtime: spec.design.microtime,
+        reference: spec.design.reference,
         high_pass: spec.design.high_pass,
-        hrf: HrfSettings {
-            derivative: spec.design.derivative,
-        },
-        trials: TrialSource {
-            file: PathBuf::from("trials.csv"),
-            subject_column: "subject".into(),
-            run_column: "run".into(),
-        },
-        events: vec![
-            event(CUE, CUE_ONSET, task.cue_duration),
-            event(OUTCOME, OUTCOME_ONSET, task.outcome_duration),
-        ],
+        derivative: spec.design.derivative,
+        centre: true,
         models: spec
             .learners
             .iter()
@@ -160,10 +130,9 @@ pub fn study_for(spec: &ForecastSpec, variant: &TaskVariant) -> Study {
                     .collect(),
             })
             .collect(),
-        nuisance: None,
-        thresholds: spec.thresholds,
-        bids: None,
-    }
+        source: spec.path.clone(),
+    };
+    RunSettings::new(design, spec.thresholds, AnalysisOptions::default())
 }
 
 /// The participant's runs as the design builder takes them.
@@ -218,13 +187,8 @@ pub fn run_trials(
 }
 
 /// Checks every run of the participant with the study's full diagnostics.
-pub fn check_runs(
-    study: &Study,
-    settings: &DesignSettings,
-    runs: &[RunTrials],
-) -> crate::Result<Vec<RunReport>> {
-    let options = CheckOptions::default();
+pub fn check_runs(settings: &RunSettings, runs: &[RunTrials]) -> crate::Result<Vec<RunReport>> {
     runs.iter()
-        .map(|run| assess_run(study, settings, run, None, None, &options))
+        .map(|run| assess_run(settings, run, None, None))
         .collect()
 }

@@ -4,7 +4,7 @@
 use rayon::prelude::*;
 
 use super::participant::{
-    CUE, OUTCOME, SimulatedParticipant, check_runs, run_trials, simulate, study_for,
+    CUE, OUTCOME, SimulatedParticipant, check_runs, run_trials, settings_for, simulate,
 };
 use super::ranking::{FocusValues, chance_best, rank, score};
 use super::report::{FORECAST_CAUTIONS, ForecastInfo, ForecastReport, TaskInfo, VariantForecast};
@@ -13,7 +13,6 @@ use super::spec::{ForecastSpec, RankBy};
 use super::summary::{
     Recovery, RunDigest, StatusCounts, Tracked, model_set_forecast, pearson, regressor_forecast,
 };
-use crate::design::DesignSettings;
 use crate::error::Result;
 
 /// What a caller may want besides the report.
@@ -62,14 +61,13 @@ pub fn run_forecast(
     let mut kept = Vec::new();
     let mut focus_values = Vec::new();
     for variant in &spec.variants {
-        let study = study_for(spec, variant);
-        let settings = DesignSettings::new(&study, true);
+        let settings = settings_for(spec, variant);
         let outcomes: Vec<Result<Outcome>> = personas
             .par_iter()
             .map(|persona| {
                 let participant = simulate(spec, variant, persona);
                 let runs = run_trials(spec, variant, &participant);
-                let reports = check_runs(&study, &settings, &runs)?;
+                let reports = check_runs(&settings, &runs)?;
                 let digests: Vec<RunDigest> = reports
                     .iter()
                     .map(|r| RunDigest::of(r, &tracked, &learner_names))

@@ -1,18 +1,16 @@
-//! `--format json`: the report model as JSON (the fields of DESIGN.md). Undefined
-//! numbers are `null`, with a flag in the same run saying why.
+//! `--format json`: the report model as JSON (the fields of the README's "JSON"
+//! section). Undefined numbers are `null`, with a flag in the same run saying why.
 //!
 //! [`JsonStream`] writes the same bytes as [`render`] one run at a time, so that a large
-//! cohort's report never has to be held in memory whole.
+//! cohort's report never has to be held in memory whole; `check` and `merge` both write
+//! their JSON through it.
 
 use std::io::Write;
 
 use serde::Serialize;
 
-use crate::check::{Prepared, ReportHead, Summaries};
-use crate::error::{Error, Result};
-use crate::files::InputFiles;
-use crate::report::Report;
-use crate::report::RunReport;
+use crate::cohort::Summaries;
+use crate::report::{Report, ReportHead, RunReport};
 use crate::screen::CLAIMS_NOTE;
 
 pub fn render(report: &Report) -> String {
@@ -33,22 +31,42 @@ pub struct JsonStream<W: Write> {
     runs: usize,
 }
 
+/// The head fields of a report, each already rendered as it sits in the report (e.g.
+/// copied from a shard's JSON).
+pub struct RenderedHead<'a> {
+    pub tool: &'a [u8],
+    pub study: &'a [u8],
+    pub settings: &'a [u8],
+}
+
 impl<W: Write> JsonStream<W> {
-    pub fn begin(mut out: W, head: &ReportHead) -> std::io::Result<Self> {
-        out.write_all(b"{")?;
-        let mut stream = JsonStream { out, runs: 0 };
-        stream.field("tool", &head.tool, true)?;
-        stream.field("study", &head.study, false)?;
-        stream.field("settings", &head.settings, false)?;
-        stream.out.write_all(b",\n  \"runs\": [")?;
-        Ok(stream)
+    pub fn begin(out: W, head: &ReportHead) -> std::io::Result<Self> {
+        let tool = render_field(&head.tool)?;
+        let study = render_field(&head.study)?;
+        let settings = render_field(&head.settings)?;
+        JsonStream::begin_rendered(
+            out,
+            RenderedHead {
+                tool: &tool,
+                study: &study,
+                settings: &settings,
+            },
+        )
     }
 
-    pub fn run(&mut self, run: &RunReport) -> std::io::Result<()> {
-        self.rendered_run(&render_run(run)?)
+    pub fn begin_rendered(mut out: W, head: RenderedHead<'_>) -> std::io::Result<Self> {
+        out.write_all(b"{\n  \"tool\": ")?;
+        out.write_all(head.tool)?;
+        out.write_all(b",\n  \"study\": ")?;
+        out.write_all(head.study)?;
+        out.write_all(b",\n  \"settings\": ")?;
+        out.write_all(head.settings)?;
+        out.write_all(b",\n  \"runs\": [")?;
+        Ok(JsonStream { out, runs: 0 })
     }
 
-    /// A run already rendered by [`render_run`] (e.g. on another thread).
+    /// A run already rendered by [`render_run`] (e.g. on another thread, or copied from
+    /// a shard's JSON).
     pub fn rendered_run(&mut self, rendered: &[u8]) -> std::io::Result<()> {
         if self.runs > 0 {
             self.out.write_all(b",")?;
@@ -64,46 +82,27 @@ impl<W: Write> JsonStream<W> {
             self.out.write_all(b"\n  ")?;
         }
         self.out.write_all(b"]")?;
-        self.field("subjects", &summaries.subjects, false)?;
-        self.field("cohort", &summaries.cohort, false)?;
-        self.field("subject_partition", &summaries.subject_partition, false)?;
-        self.field("cohort_partition", &summaries.cohort_partition, false)?;
-        self.field("claims_note", &CLAIMS_NOTE, false)?;
+        self.field("subjects", &summaries.subjects)?;
+        self.field("cohort", &summaries.cohort)?;
+        self.field("subject_partition", &summaries.subject_partition)?;
+        self.field("cohort_partition", &summaries.cohort_partition)?;
+        self.field("claims_note", &CLAIMS_NOTE)?;
         self.out.write_all(b"\n}\n")?;
         self.out.flush()?;
         Ok(self.out)
     }
 
-    fn field<T: Serialize>(&mut self, key: &str, value: &T, first: bool) -> std::io::Result<()> {
-        if !first {
-            self.out.write_all(b",")?;
-        }
-        write!(self.out, "\n  \"{key}\": ")?;
+    fn field<T: Serialize>(&mut self, key: &str, value: &T) -> std::io::Result<()> {
+        write!(self.out, ",\n  \"{key}\": ")?;
         write_indented(&mut self.out, value, b"\n  ")
     }
 }
 
-/// `check --format json` of a prepared study: every run is checked and written to `out`
-/// as its batch finishes (rendered on the worker threads), so the whole report is never
-/// held in memory. Returns the cohort views; an error of the check itself is returned as
-/// is, a failed write as [`Error::Output`].
-pub fn stream_check(
-    prepared: &Prepared,
-    files: &dyn InputFiles,
-    out: &mut dyn Write,
-) -> Result<Summaries> {
-    let output_error = |source| Error::Output {
-        path: "the report".into(),
-        source,
-    };
-    let mut stream = JsonStream::begin(out, &prepared.head()).map_err(output_error)?;
-    let summaries = prepared.run_all_rendered(files, &|run| render_run(&run), &mut |rendered| {
-        stream
-            .rendered_run(&rendered.map_err(output_error)?)
-            .map_err(output_error)
-    })?;
-    stream.finish(&summaries).map_err(output_error)?;
-    Ok(summaries)
+/// A head field's JSON as it sits in the report (one level deep).
+fn render_field<T: Serialize>(value: &T) -> std::io::Result<Vec<u8>> {
+    let mut rendered = Vec::new();
+    write_indented(&mut rendered, value, b"\n  ")?;
+    Ok(rendered)
 }
 
 /// One run's JSON as it sits in the report's list of runs.

@@ -41,9 +41,9 @@ pub fn render(report: &Report) -> String {
     text.push_str(&cohort_partition(report));
     text.push_str(&format!(
         "\n{} ok, {} caution, {} severe (of {} participants)\n\n{}\n",
-        report.cohort.ok,
-        report.cohort.caution,
-        report.cohort.severe,
+        report.cohort.statuses.ok,
+        report.cohort.statuses.caution,
+        report.cohort.statuses.severe,
         report.cohort.subjects,
         READING_NOTES
     ));

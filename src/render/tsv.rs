@@ -72,7 +72,11 @@ pub fn render(report: &Report) -> Vec<TsvTable> {
 
 /// Everything on standard output, one table after another.
 pub fn render_joined(report: &Report) -> String {
-    let tables = render(report);
+    join(&render(report))
+}
+
+/// The tables one after another, each after the first under a line `# <table>`.
+pub fn join(tables: &[TsvTable]) -> String {
     let mut text = String::new();
     for (i, table) in tables.iter().enumerate() {
         if i > 0 {

@@ -1,21 +1,18 @@
 //! The report model: one structure that every output format reads, so that no format
 //! keeps its own list of fields. Its JSON form is the contract of DESIGN.md.
 
+mod run;
+mod settings;
+
+pub use run::{
+    ORTHOGONALISATION_CAUTION, OrthogonalisedView, RegressorReport, RunReport, RunScreening,
+};
+pub use settings::{DIAGNOSTICS_SPACE, HrfInfo, Settings};
+
 use serde::{Deserialize, Serialize};
 
-use crate::cohort::{CohortShare, ParticipantShare};
-use crate::design::{Design, EventSummary, Regressor, RegressorKind};
-use crate::diagnose::{
-    Contrast, DEPENDENCY_TOLERANCE, Dependency, Diagnostics, ModelSet, TrialCorrelation,
-};
-use crate::diagnose::{ModelOverlap, RegressorPartition};
-use crate::flags::Flag;
-use crate::screen::{EntangledDimension, Status, SubjectSummary, vif_status};
-use crate::signal::RegionPartition;
-use crate::study::{Study, Thresholds};
-
-/// Said in every output: the space the numbers live in.
-pub const DIAGNOSTICS_SPACE: &str = "VIFs and correlations of the filtered design: the constant and the cosine drift basis are projected out of every regressor first; nuisance regressors stay in as regressors";
+use crate::cohort::{Cohort, CohortShare, ParticipantShare, SubjectSummary, Summaries};
+use crate::screen::CLAIMS_NOTE;
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Report {
@@ -58,223 +55,26 @@ pub struct StudyInfo {
     pub file: String,
 }
 
+/// Everything a report holds before its runs: the same for every shard of a study.
 #[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct Settings {
-    pub tr: f64,
-    pub microtime: usize,
-    pub reference: f64,
-    pub high_pass: f64,
-    pub hrf: HrfInfo,
-    pub centring: bool,
-    /// "none" or "serial".
-    pub orthogonalisation: Text,
-    pub thresholds: Thresholds,
-    pub diagnostics_space: Text,
-    pub dependency_tolerance: f64,
+pub struct ReportHead {
+    pub tool: ToolInfo,
+    pub study: StudyInfo,
+    pub settings: Settings,
 }
 
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct HrfInfo {
-    pub shape: Text,
-    pub derivative: bool,
-    pub scaling: Text,
-}
-
-impl Settings {
-    pub fn new(study: &Study, centring: bool, orthogonalise: bool) -> Self {
-        Settings {
-            tr: study.acquisition.tr,
-            microtime: study.acquisition.microtime,
-            reference: study.acquisition.reference,
-            high_pass: study.high_pass,
-            hrf: HrfInfo {
-                shape: Text::Borrowed(
-                    "canonical double-gamma, g(t;6,1) - g(t;16,1)/6 on 0-32 s (Friston et al. 1998)",
-                ),
-                derivative: study.hrf.derivative,
-                scaling: Text::Borrowed("sampled kernel divided by the sum of its samples"),
-            },
-            centring,
-            orthogonalisation: Text::Borrowed(if orthogonalise { "serial" } else { "none" }),
-            thresholds: study.thresholds,
-            diagnostics_space: Text::Borrowed(DIAGNOSTICS_SPACE),
-            dependency_tolerance: DEPENDENCY_TOLERANCE,
-        }
-    }
-}
-
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct RegressorReport {
-    #[serde(flatten)]
-    pub regressor: Regressor,
-    /// `false` when the regressor was left out of the design (see the flags).
-    pub in_design: bool,
-    pub status: Status,
-}
-
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct RunReport {
-    pub subject: String,
-    pub run: String,
-    /// The BIDS session; omitted from JSON when the study has none.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub session: Option<String>,
-    pub scans: usize,
-    /// Constant and cosine columns projected out.
-    pub drift_columns: usize,
-    /// Trials and durations of each event in the run.
-    pub events: Vec<EventSummary>,
-    pub regressors: Vec<RegressorReport>,
-    /// Aligned with `regressors`; `null` where undefined (a flag says why).
-    pub vif: Vec<Option<f64>>,
-    /// √VIF: how many times larger each standard error is than without overlap.
-    pub se_inflation: Vec<Option<f64>>,
-    pub correlation: Vec<Vec<Option<f64>>>,
-    pub trial_correlation: Vec<TrialCorrelation>,
-    pub dependencies: Vec<Dependency>,
-    /// Belsley–Kuh–Welsch condition indices of the filtered, unit-length design.
-    pub condition_indices: Vec<f64>,
-    /// Dimensions × regressors (`null` for regressors not analysed).
-    pub variance_proportions: Vec<Vec<Option<f64>>>,
-    pub entangled_dimensions: Vec<EntangledDimension>,
-    pub model_sets: Vec<ModelSet>,
-    /// Own-contrast efficiency of each regressor (design units; compare within a study only).
-    pub efficiency: Vec<Option<f64>>,
-    pub contrasts: Vec<Contrast>,
-    /// Each modulator's variance: unique, and shared with each group (commonality analysis).
-    pub partition: Vec<RegressorPartition>,
-    pub model_overlap: Vec<ModelOverlap>,
-    /// With `--signal`: each region's variance split into model-unique and shared parts.
-    #[serde(default, skip_serializing_if = "Vec::is_empty")]
-    pub signal: Vec<RegionPartition>,
-    /// Present with `--orthogonalise serial`: the same run with modulators orthogonalised.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub orthogonalised: Option<OrthogonalisedView>,
-    pub flags: Vec<Flag>,
-    pub status: Status,
-}
-
-/// The numbers that serial orthogonalisation changes, beside the as-written ones.
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct OrthogonalisedView {
-    pub method: Text,
-    /// Modulators in the order they were orthogonalised.
-    pub order: Vec<String>,
-    pub vif: Vec<Option<f64>>,
-    pub efficiency: Vec<Option<f64>>,
-    pub model_sets: Vec<ModelSet>,
-    pub contrasts: Vec<Contrast>,
-    pub caution: Text,
-}
-
-/// Said wherever orthogonalised numbers are shown.
-pub const ORTHOGONALISATION_CAUTION: &str = "Serial orthogonalisation does not remove redundancy, it assigns it. The fitted space is unchanged; each modulator's column loses what it shares with the modulators before it, and its estimate takes over what it shares with the modulators after it. So the last modulator keeps its estimate and its test (its VIF drops only because its column got shorter), while the earlier ones no longer measure what their models alone predict (Mumford, Poline & Poldrack 2015). Statuses and flags refer to the design as written.";
-
-impl OrthogonalisedView {
-    pub fn new(design: &Design, diagnostics: Diagnostics) -> Self {
-        OrthogonalisedView {
-            method: Text::Borrowed("serial"),
-            order: design
-                .regressors
-                .iter()
-                .filter(|r| r.kind == RegressorKind::Modulator)
-                .map(|r| r.name.clone())
-                .collect(),
-            vif: diagnostics.vif,
-            efficiency: diagnostics.efficiency,
-            model_sets: diagnostics.model_sets,
-            contrasts: diagnostics.contrasts,
-            caution: Text::Borrowed(ORTHOGONALISATION_CAUTION),
-        }
-    }
-}
-
-/// What a run report holds besides the design and its diagnostics.
-pub struct RunScreening {
-    pub signal: Vec<RegionPartition>,
-    pub entangled_dimensions: Vec<EntangledDimension>,
-    pub flags: Vec<Flag>,
-    pub status: Status,
-    pub orthogonalised: Option<OrthogonalisedView>,
-}
-
-impl RunReport {
-    pub fn new(
-        design: Design,
-        diagnostics: Diagnostics,
-        screening: RunScreening,
-        thresholds: &Thresholds,
-    ) -> Self {
-        let regressors = design
-            .regressors
-            .into_iter()
-            .enumerate()
-            .map(|(index, regressor)| {
-                let in_design = design.included[index];
-                let status = if regressor.kind.of_interest() {
-                    let undefined = diagnostics.vif[index].is_none();
-                    if undefined {
-                        Status::Severe
-                    } else {
-                        vif_status(diagnostics.vif[index], thresholds)
-                    }
-                } else {
-                    Status::Ok
-                };
-                RegressorReport {
-                    regressor,
-                    in_design,
-                    status,
-                }
-            })
-            .collect();
-        RunReport {
-            subject: design.subject,
-            run: design.run,
-            session: design.session,
-            scans: design.scans,
-            drift_columns: design.drift_columns,
-            events: design.events,
-            regressors,
-            se_inflation: diagnostics.vif.iter().map(|v| v.map(f64::sqrt)).collect(),
-            vif: diagnostics.vif,
-            correlation: diagnostics.correlation,
-            trial_correlation: diagnostics.trial_correlation,
-            dependencies: diagnostics.dependencies,
-            condition_indices: diagnostics.conditioning.condition_indices,
-            variance_proportions: diagnostics.conditioning.variance_proportions,
-            entangled_dimensions: screening.entangled_dimensions,
-            model_sets: diagnostics.model_sets,
-            efficiency: diagnostics.efficiency,
-            contrasts: diagnostics.contrasts,
-            partition: diagnostics.partition,
-            model_overlap: diagnostics.model_overlap,
-            signal: screening.signal,
-            orthogonalised: screening.orthogonalised,
-            flags: screening.flags,
-            status: screening.status,
-        }
-    }
-}
-
-#[derive(Debug, Clone, Default, Serialize, Deserialize)]
-pub struct Cohort {
-    pub subjects: usize,
-    pub runs: usize,
-    pub ok: usize,
-    pub caution: usize,
-    pub severe: usize,
-}
-
-impl Cohort {
-    pub fn count(subjects: &[SubjectSummary], runs: usize) -> Self {
-        let with = |status| subjects.iter().filter(|s| s.status == status).count();
-        Cohort {
-            subjects: subjects.len(),
+impl Report {
+    pub fn new(head: ReportHead, runs: Vec<RunReport>, summaries: Summaries) -> Self {
+        Report {
+            tool: head.tool,
+            study: head.study,
+            settings: head.settings,
             runs,
-            ok: with(Status::Ok),
-            caution: with(Status::Caution),
-            severe: with(Status::Severe),
+            subjects: summaries.subjects,
+            cohort: summaries.cohort,
+            subject_partition: summaries.subject_partition,
+            cohort_partition: summaries.cohort_partition,
+            claims_note: Text::Borrowed(CLAIMS_NOTE),
         }
     }
 }

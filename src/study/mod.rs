@@ -18,13 +18,30 @@ pub struct Study {
     /// High-pass cutoff in seconds; 0 turns the drift basis off.
     pub high_pass: f64,
     pub hrf: HrfSettings,
-    pub trials: TrialSource,
+    /// Where the trials come from: one trial table, or a BIDS dataset.
+    pub source: TrialSource,
     pub events: Vec<EventSpec>,
     pub models: Vec<ModelSpec>,
     pub nuisance: Option<NuisanceSpec>,
     pub thresholds: Thresholds,
-    /// Set when the trials come from a BIDS dataset instead of one trial table.
-    pub bids: Option<BidsSource>,
+}
+
+impl Study {
+    /// The trial table or the BIDS dataset's folder, named in messages about a run.
+    pub fn source_path(&self) -> &std::path::Path {
+        match &self.source {
+            TrialSource::Table(table) => &table.file,
+            TrialSource::Bids(bids) => &bids.root,
+        }
+    }
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub enum TrialSource {
+    /// A flat trial table (the `[trials]` section).
+    Table(TrialTable),
+    /// A BIDS dataset (the `[bids]` section).
+    Bids(BidsSource),
 }
 
 /// Where a BIDS-organised study keeps its data (the study file's `[bids]` section).
@@ -42,10 +59,6 @@ pub struct BidsSource {
     pub derivatives: Option<PathBuf>,
     /// How derivative rows are matched to event rows.
     pub join: JoinBy,
-    /// TR and volumes written in the study file, which override the data's (with a
-    /// flag when they disagree).
-    pub tr: Option<f64>,
-    pub scans: Option<usize>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -58,9 +71,14 @@ pub enum JoinBy {
 
 #[derive(Debug, Clone, PartialEq)]
 pub struct Acquisition {
-    /// Repetition time in seconds.
-    pub tr: f64,
-    pub scans: ScanCounts,
+    /// Repetition time in seconds, as the study file gives it: required with a trial
+    /// table; in a BIDS study it overrides the sidecars' `RepetitionTime` (with a flag
+    /// when they disagree) and may be left out. The TR a check uses is resolved once,
+    /// when the runs are read (`crate::check::read`), and lives in its run settings.
+    pub tr: Option<f64>,
+    /// Volumes per run: required with a trial table; in a BIDS study an override of
+    /// every image header (`ScanCounts::Fixed` only).
+    pub scans: Option<ScanCounts>,
     /// Microtime bins per TR.
     pub microtime: usize,
     /// Where in the TR each scan is sampled, as a fraction of the TR.
@@ -81,11 +99,17 @@ pub struct HrfSettings {
 }
 
 #[derive(Debug, Clone, PartialEq)]
-pub struct TrialSource {
+pub struct TrialTable {
     /// Resolved against the study file's folder.
     pub file: PathBuf,
-    pub subject_column: String,
-    pub run_column: String,
+    pub labels: LabelColumns,
+}
+
+/// The columns of a trial table that hold each row's participant and run labels.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LabelColumns {
+    pub subject: String,
+    pub run: String,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -176,9 +200,9 @@ pub const MAX_SCANS: usize = 100_000;
 /// The most microtime bins per TR (the grid is scans × microtime long).
 pub const MAX_MICROTIME: usize = 1024;
 pub const DEFAULT_REFERENCE: f64 = 0.5;
+/// A TR below this many seconds (60 ms) is no fMRI acquisition: it is a TR written in
+/// minutes (2 s = 0.033 min).
+pub const MIN_PLAUSIBLE_TR: f64 = 0.06;
+/// A TR above this many seconds is one written in milliseconds.
+pub const MAX_PLAUSIBLE_TR: f64 = 100.0;
 pub const DEFAULT_HIGH_PASS: f64 = 128.0;
-
-/// The name in `known` most like `name` (for "did you mean" hints).
-pub fn closest_name<'a>(name: &str, known: &[&'a str]) -> Option<&'a str> {
-    schema::closest(name, known)
-}

@@ -15,9 +15,6 @@ use super::*;
 use crate::error::{Location, Problem, Result};
 
 use crate::toml_read::{Table, TomlReader, get, has_key, parse_toml};
-/// A TR below this many seconds (60 ms) is no fMRI acquisition: it is a TR written in
-/// minutes (2 s = 0.033 min).
-const MIN_PLAUSIBLE_TR: f64 = 0.06;
 
 /// Models plus the task and nuisance groups must stay within the partition's group limit.
 use super::MAX_MODELS;
@@ -74,12 +71,8 @@ impl Reader<'_> {
         };
         let hrf = self.section(root, "hrf").unwrap_or(&empty);
         let derivative = self.boolean(hrf, "derivative").unwrap_or(false);
-        let trials = match &bids {
-            Some(Some(source)) if !has_key(root, "trials") => Some(TrialSource {
-                file: source.root.clone(),
-                subject_column: crate::bids::SUBJECT_COLUMN.into(),
-                run_column: crate::bids::RUN_COLUMN.into(),
-            }),
+        let source = match bids {
+            Some(Some(source)) if !has_key(root, "trials") => Some(TrialSource::Bids(source)),
             Some(Some(_)) => {
                 let span = get(root, "trials").map_or(0..0, |v| v.span());
                 self.problem(
@@ -88,10 +81,11 @@ impl Reader<'_> {
                 );
                 None
             }
-            _ => self.trials(root, &dir),
+            Some(None) => self.trials(root, &dir).map(TrialSource::Table),
+            None => None,
         };
-        let type_column = match &bids {
-            Some(Some(source)) => Some(source.type_column.as_str()),
+        let type_column = match &source {
+            Some(TrialSource::Bids(source)) => Some(source.type_column.as_str()),
             _ => None,
         };
         let events = self.events(root, type_column);
@@ -110,17 +104,16 @@ impl Reader<'_> {
             acquisition: acquisition?,
             high_pass: high_pass?,
             hrf: HrfSettings { derivative },
-            trials: trials?,
+            source: source?,
             events: events?,
             models: models?,
             nuisance: nuisance?,
             thresholds: thresholds?,
-            bids: bids?,
         })
     }
 
-    /// With `bids`, `tr` and `scans` may be left out (they come from the data) and the
-    /// section itself is optional; absent values are 0 until [`crate::bids`] resolves them.
+    /// With `bids`, `tr` and `scans` may be left out (they come from the data: `None`)
+    /// and the section itself is optional.
     fn acquisition(&mut self, root: &Table<'_>, dir: &Path, bids: bool) -> Option<Acquisition> {
         let empty = Table::default();
         let section = self.section(root, "acquisition");
@@ -147,7 +140,7 @@ impl Reader<'_> {
                 );
                 None
             }
-            Some((tr, span)) if tr > 100.0 => {
+            Some((tr, span)) if tr > MAX_PLAUSIBLE_TR => {
                 self.problem_with_hint(
                     span,
                     format!("tr = {tr} seconds is implausible"),
@@ -166,8 +159,8 @@ impl Reader<'_> {
                 );
                 None
             }
-            Some((tr, _)) => Some(tr),
-            None if bids && !has_key(table, "tr") => Some(0.0),
+            Some((tr, _)) => Some(Some(tr)),
+            None if bids && !has_key(table, "tr") => Some(None),
             None => {
                 self.missing(table, "acquisition", "tr", "tr = 2.0   # seconds");
                 None
@@ -177,6 +170,10 @@ impl Reader<'_> {
             self.positive_integer(table, "scans"),
             self.string(table, "scans_file"),
         ) {
+            (_, Some((_, span))) if bids => {
+                self.problem(span, "a BIDS study reads each run's volumes from its image header; use scans = N to override them all, not scans_file");
+                None
+            }
             (Some(_), Some((_, span))) => {
                 self.problem(span, "give either scans or scans_file, not both");
                 None
@@ -189,9 +186,9 @@ impl Reader<'_> {
                 );
                 None
             }
-            (Some(scans), None) => Some(ScanCounts::Fixed(scans)),
-            (None, Some((file, _))) => Some(ScanCounts::File(dir.join(file))),
-            (None, None) if bids && !has_key(table, "scans") => Some(ScanCounts::Fixed(0)),
+            (Some(scans), None) => Some(Some(ScanCounts::Fixed(scans))),
+            (None, Some((file, _))) => Some(Some(ScanCounts::File(dir.join(file)))),
+            (None, None) if bids && !has_key(table, "scans") => Some(None),
             (None, None) => {
                 if !has_key(table, "scans") {
                     self.missing(
@@ -238,7 +235,7 @@ impl Reader<'_> {
         })
     }
 
-    fn trials(&mut self, root: &Table<'_>, dir: &Path) -> Option<TrialSource> {
+    fn trials(&mut self, root: &Table<'_>, dir: &Path) -> Option<TrialTable> {
         let Some(table) = self.section(root, "trials") else {
             self.0.problems.push(
                 Problem::new(
@@ -260,10 +257,9 @@ impl Reader<'_> {
             .string(table, "subject")
             .map_or("subject".into(), |s| s.0);
         let run = self.string(table, "run").map_or("run".into(), |s| s.0);
-        Some(TrialSource {
+        Some(TrialTable {
             file: file?,
-            subject_column: subject,
-            run_column: run,
+            labels: LabelColumns { subject, run },
         })
     }
 
@@ -434,7 +430,7 @@ impl Reader<'_> {
                 continue;
             };
             if !event_names.contains(&event.as_str()) {
-                let hint = match schema::closest(&event, event_names) {
+                let hint = match crate::error::closest_name(&event, event_names) {
                     Some(near) => format!(
                         "did you mean \"{near}\"? declared events: {}",
                         event_names.join(", ")
@@ -531,25 +527,6 @@ impl Reader<'_> {
             Some((column, _)) => JoinBy::Column(column),
             None => JoinBy::RowOrder,
         };
-        let acquisition = match get(root, "acquisition").map(|v| v.get_ref()) {
-            Some(DeValue::Table(t)) => Some(t),
-            _ => None,
-        };
-        let tr = acquisition.and_then(|t| get(t, "tr")).and_then(|_| {
-            acquisition
-                .and_then(|t| self.number(t, "tr"))
-                .map(|(v, _)| v)
-        });
-        let scans = acquisition
-            .filter(|t| has_key(t, "scans"))
-            .and_then(|t| self.positive_integer(t, "scans"));
-        if acquisition.is_some_and(|t| has_key(t, "scans_file")) {
-            let span = acquisition
-                .and_then(|t| get(t, "scans_file"))
-                .map_or(0..0, |v| v.span());
-            self.problem(span, "a BIDS study reads each run's volumes from its image header; use scans = N to override them all, not scans_file");
-            return None;
-        }
         Some(Some(BidsSource {
             root: root_dir?,
             task: task?,
@@ -558,8 +535,6 @@ impl Reader<'_> {
             type_column,
             derivatives,
             join,
-            tr,
-            scans,
         }))
     }
 

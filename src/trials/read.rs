@@ -3,17 +3,20 @@
 use super::{RunCollector, RunTrials, ScanTable, Table};
 use crate::error::{Error, Result};
 use crate::files::InputFiles;
-use crate::study::Study;
+use crate::study::{Study, TrialTable};
 
 /// Rows of the trial table held at once while it is read.
 pub const ROWS_PER_CHUNK: usize = 16 * 1024;
 
-/// The runs of a flat trial table, read `rows_per_chunk` rows at a time: only the numbers the study
-/// uses are kept, never the whole text. Parsing the text (this thread) and turning rows
-/// into runs (a second thread) overlap, a few chunks apart.
+/// The runs of the flat trial table `source` of `study` (TR `tr` seconds), read
+/// `rows_per_chunk` rows at a time: only the numbers the study uses are kept, never the
+/// whole text. Parsing the text (this thread) and turning rows into runs (a second
+/// thread) overlap, a few chunks apart.
 pub fn read_runs(
     files: &dyn InputFiles,
     study: &Study,
+    source: &TrialTable,
+    tr: f64,
     scans: &ScanTable,
     rows_per_chunk: usize,
 ) -> Result<Vec<RunTrials>> {
@@ -24,7 +27,13 @@ pub fn read_runs(
             for chunk in receive {
                 let collector = match &mut collector {
                     Some(collector) => collector,
-                    None => collector.insert(RunCollector::new(study, &chunk, scans)?),
+                    None => collector.insert(RunCollector::new(
+                        study,
+                        &source.labels,
+                        tr,
+                        &chunk,
+                        scans,
+                    )?),
                 };
                 collector.add(&chunk);
             }
@@ -37,7 +46,7 @@ pub fn read_runs(
         });
         // A send fails only once the collector has stopped on an error of its own.
         let mut collector_stopped = false;
-        let read = Table::read_in_chunks(files, &study.trials.file, rows_per_chunk, &mut |chunk| {
+        let read = Table::read_in_chunks(files, &source.file, rows_per_chunk, &mut |chunk| {
             if send.send(chunk).is_err() {
                 collector_stopped = true;
                 return Err(Error::Internal("the run collector stopped".into()));

@@ -6,7 +6,7 @@ use foldhash::{HashMap, HashMapExt};
 use super::{Row, ScanTable, Table, check_label};
 use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::flags::{Flag, Severity};
-use crate::study::{Duration, Study};
+use crate::study::{Duration, LabelColumns, Study};
 
 /// Everything the design builder needs to know about one run.
 #[derive(Debug, Clone, PartialEq)]
@@ -78,8 +78,16 @@ struct EventColumns {
     modulators: Vec<(String, String, usize)>,
 }
 
-pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<Vec<RunTrials>> {
-    let mut collector = RunCollector::new(study, table, scans)?;
+/// The runs of `table`: `labels` names its participant and run columns, `tr` (seconds)
+/// is the study's, for the checks of onset units.
+pub fn collect_runs(
+    study: &Study,
+    labels: &LabelColumns,
+    tr: f64,
+    table: &Table,
+    scans: &ScanTable,
+) -> Result<Vec<RunTrials>> {
+    let mut collector = RunCollector::new(study, labels, tr, table, scans)?;
     collector.add(table);
     collector.finish()
 }
@@ -88,6 +96,7 @@ pub fn collect_runs(study: &Study, table: &Table, scans: &ScanTable) -> Result<V
 /// number of [`Table`]s with the same columns, in file order).
 pub struct RunCollector<'s> {
     study: &'s Study,
+    tr: f64,
     scans: &'s ScanTable,
     path: std::path::PathBuf,
     subject_column: usize,
@@ -104,7 +113,13 @@ pub struct RunCollector<'s> {
 impl<'s> RunCollector<'s> {
     /// Finds the columns the study needs in the table's header (`table` may be the
     /// first chunk: only its header is read here).
-    pub fn new(study: &'s Study, table: &Table, scans: &'s ScanTable) -> Result<Self> {
+    pub fn new(
+        study: &'s Study,
+        labels: &LabelColumns,
+        tr: f64,
+        table: &Table,
+        scans: &'s ScanTable,
+    ) -> Result<Self> {
         let mut problems = Problems::default();
         let mut column = |name: &str, wanted_by: String| match table.column(name, &wanted_by) {
             Ok(index) => Some(index),
@@ -113,8 +128,8 @@ impl<'s> RunCollector<'s> {
                 None
             }
         };
-        let subject_column = column(&study.trials.subject_column, "[trials] subject".into());
-        let run_column = column(&study.trials.run_column, "[trials] run".into());
+        let subject_column = column(&labels.subject, "[trials] subject".into());
+        let run_column = column(&labels.run, "[trials] run".into());
         let mut events = Vec::new();
         for event in &study.events {
             let onset = column(
@@ -159,6 +174,7 @@ impl<'s> RunCollector<'s> {
         };
         Ok(RunCollector {
             study,
+            tr,
             scans,
             path: table.path.clone(),
             subject_column,
@@ -258,12 +274,7 @@ impl<'s> RunCollector<'s> {
             }
         }
         for run in &mut self.runs {
-            check_times(
-                &self.path,
-                self.study.acquisition.tr,
-                run,
-                &mut self.problems,
-            );
+            check_times(&self.path, self.tr, run, &mut self.problems);
             same_onset_flags(run);
             run.shrink_to_fit();
         }

@@ -204,7 +204,7 @@ impl Table {
     pub fn column(&self, name: &str, wanted_by: &str) -> Result<usize, Problem> {
         self.headers.iter().position(|h| h == name).ok_or_else(|| {
             let known: Vec<&str> = self.headers.iter().map(String::as_str).collect();
-            let hint = match crate::study::closest_name(name, &known) {
+            let hint = match crate::error::closest_name(name, &known) {
                 Some(near) => format!("did you mean \"{near}\"? columns: {}", known.join(", ")),
                 None => format!("columns in the file: {}", known.join(", ")),
             };

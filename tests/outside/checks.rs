@@ -7,12 +7,14 @@ use std::path::{Path, PathBuf};
 use crate::common::paired;
 use approx::assert_relative_eq;
 use serde_json::Value;
+use tangle::check::read_runs;
+use tangle::design::build_design;
 use tangle::design::hrf::{canonical, canonical_derivative, sampled};
-use tangle::design::{DesignSettings, build_design};
 use tangle::diagnose::{belsley, diagnose, with_intercept};
 use tangle::files::{DiskFiles, read_text};
+use tangle::settings::{AnalysisOptions, RunSettings};
 use tangle::study::parse_study;
-use tangle::trials::{ScanTable, Table, collect_runs};
+use tangle::trials::Table;
 
 fn reference(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -113,10 +115,9 @@ fn design_columns_match_an_independent_numpy_build() {
     let expected = json("design_fixture/expected.json");
     let path = reference("design_fixture/study.toml");
     let study = parse_study(&path, &read_text(&DiskFiles, &path).unwrap()).unwrap();
-    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
-    let table = Table::read(&DiskFiles, &study.trials.file).unwrap();
-    let runs = collect_runs(&study, &table, &scans).unwrap();
-    let design = build_design(&DesignSettings::new(&study, true), &runs[0], None).unwrap();
+    let (tr, runs) = read_runs(&DiskFiles, &study).unwrap();
+    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default());
+    let design = build_design(&settings.design, &runs[0], None).unwrap();
     let names: Vec<&str> = design.regressors.iter().map(|r| r.name.as_str()).collect();
     let expected_names = strings(&expected["regressors"]);
     assert_eq!(names, expected_names);

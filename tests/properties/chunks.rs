@@ -5,32 +5,44 @@ use std::path::Path;
 
 use crate::common::StudyDir;
 use tangle::files::{DiskFiles, read_text};
-use tangle::study::{Study, parse_study};
+use tangle::study::{Study, TrialSource, TrialTable, parse_study};
 use tangle::trials::{RunTrials, ScanTable, Table, collect_runs, read_runs};
 
 fn study(path: &Path) -> Study {
     parse_study(path, &read_text(&DiskFiles, path).unwrap()).unwrap()
 }
 
+/// The study's trial table, TR and scan counts.
+fn table_of(study: &Study) -> (&TrialTable, f64, ScanTable) {
+    let TrialSource::Table(table) = &study.source else {
+        panic!("a study with a trial table");
+    };
+    let counts = study.acquisition.scans.as_ref().unwrap();
+    let scans = ScanTable::load(&DiskFiles, counts).unwrap();
+    (table, study.acquisition.tr.unwrap(), scans)
+}
+
 fn in_chunks(study: &Study, rows: usize) -> tangle::Result<Vec<RunTrials>> {
+    let (table, tr, scans) = table_of(study);
     let mut chunks = 0;
-    Table::read_in_chunks(&DiskFiles, &study.trials.file, rows, &mut |chunk| {
+    Table::read_in_chunks(&DiskFiles, &table.file, rows, &mut |chunk| {
         assert!(chunk.row_count() <= rows);
         chunks += 1;
         Ok(())
     })?;
     assert!(chunks > 1, "the table should span several chunks");
-    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
-    read_runs(&DiskFiles, study, &scans, rows)
+    read_runs(&DiskFiles, study, table, tr, &scans, rows)
 }
 
 #[test]
 fn chunks_of_any_size_give_the_runs_of_the_whole_table() {
     let study = study(Path::new("demo-data/study.toml"));
-    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
+    let (table, tr, scans) = table_of(&study);
     let whole = collect_runs(
         &study,
-        &Table::read(&DiskFiles, &study.trials.file).unwrap(),
+        &table.labels,
+        tr,
+        &Table::read(&DiskFiles, &table.file).unwrap(),
         &scans,
     )
     .unwrap();

@@ -110,8 +110,9 @@ proptest! {
 mod orthogonalisation {
     use super::*;
     use tangle::design::orthogonalise::serial;
-    use tangle::design::{Design, DesignSettings, build_design};
+    use tangle::design::{Design, build_design};
     use tangle::diagnose::diagnose;
+    use tangle::settings::{AnalysisOptions, RunSettings};
     use tangle::trials::{EventTrials, ModulatorValues, RunTrials};
 
     const STUDY: &str = r#"
@@ -157,7 +158,8 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
                 ],
             }],
         };
-        build_design(&DesignSettings::new(&study, true), &run, None).unwrap()
+        let settings = RunSettings::of_study(&study, 2.0, AnalysisOptions::default());
+        build_design(&settings.design, &run, None).unwrap()
     }
 
     /// Projection of `target` onto the span of the design's included filtered columns.

@@ -2,12 +2,13 @@
 //! the partition must recover them within its stated (bootstrap) uncertainty.
 
 use crate::common::{Lcg, StudyDir, paired, study_toml, trials_csv};
+use tangle::check::read_runs;
 use tangle::check::{CheckOptions, check_file};
-use tangle::design::{DesignSettings, build_design};
+use tangle::design::build_design;
 use tangle::files::{DiskFiles, read_text};
+use tangle::settings::{AnalysisOptions, RunSettings};
 use tangle::signal::BootstrapSettings;
 use tangle::study::parse_study;
-use tangle::trials::{ScanTable, Table, collect_runs};
 
 const MODELS: &str = r#"
 [[model]]
@@ -44,10 +45,9 @@ fn study() -> (StudyDir, usize) {
 fn regressors(dir: &StudyDir) -> Vec<(String, Vec<f64>)> {
     let path = dir.path("study.toml");
     let study = parse_study(&path, &read_text(&DiskFiles, &path).unwrap()).unwrap();
-    let scans = ScanTable::load(&DiskFiles, &study.acquisition.scans).unwrap();
-    let table = Table::read(&DiskFiles, &study.trials.file).unwrap();
-    let runs = collect_runs(&study, &table, &scans).unwrap();
-    let design = build_design(&DesignSettings::new(&study, true), &runs[0], None).unwrap();
+    let (tr, runs) = read_runs(&DiskFiles, &study).unwrap();
+    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default());
+    let design = build_design(&settings.design, &runs[0], None).unwrap();
     let names = design.regressors.iter().map(|r| r.name.clone());
     paired(names, design.sampled, "regressor names and columns").collect()
 }
@@ -75,7 +75,10 @@ fn write_signal(dir: &StudyDir, scans: usize, noise: f64, seed: u64) {
 fn options(dir: &StudyDir, resamples: usize, seed: u64) -> CheckOptions {
     CheckOptions {
         signal: Some(dir.path("signal/run-{run}.tsv").display().to_string()),
-        bootstrap: BootstrapSettings { resamples, seed },
+        analysis: AnalysisOptions {
+            bootstrap: BootstrapSettings { resamples, seed },
+            ..AnalysisOptions::default()
+        },
         ..CheckOptions::default()
     }
 }

@@ -17,7 +17,12 @@ pub fn render(report: &ForecastReport) -> Vec<TsvTable> {
 
 /// All tables on one stream, each after a line `# <table>`.
 pub fn render_joined(report: &ForecastReport) -> String {
-    render(report)
+    join(&render(report))
+}
+
+/// The tables one after another, each after a line `# <table>`.
+pub fn join(tables: &[TsvTable]) -> String {
+    tables
         .iter()
         .map(|t| format!("# {}\n{}", t.name, t.text))
         .collect::<Vec<_>>()

@@ -23,9 +23,9 @@ pub(super) fn header(report: &Report) -> String {
         "<p class=\"counts\">{} participants · {} runs · {} · {} · {} · study file <code>{}</code></p>",
         cohort.subjects,
         cohort.runs,
-        count_badge(Status::Ok, cohort.ok),
-        count_badge(Status::Caution, cohort.caution),
-        count_badge(Status::Severe, cohort.severe),
+        count_badge(Status::Ok, cohort.statuses.ok),
+        count_badge(Status::Caution, cohort.statuses.caution),
+        count_badge(Status::Severe, cohort.statuses.severe),
         esc(&report.study.file)
     );
     let _ = writeln!(

@@ -5,10 +5,10 @@ use std::fmt::Write as _;
 
 use super::participant_tables::{differences, entangled, flags, model_sets, signals, vif_table};
 use super::{badge, esc, number, participant_id, percent, section};
+use crate::cohort::SubjectSummary;
 use crate::flags::Severity;
 use crate::report::Report;
 use crate::report::RunReport;
-use crate::screen::SubjectSummary;
 
 pub(super) fn participants(report: &Report) -> String {
     let mut body = String::from(

@@ -7,7 +7,7 @@ use crate::report::Report;
 
 pub(super) fn closing_paragraph(report: &Report, layout: &Layout) -> String {
     let cohort = &report.cohort;
-    let flagged = cohort.caution + cohort.severe;
+    let flagged = cohort.statuses.at_least(crate::screen::Status::Caution);
     let placeholder = if flagged == 0 {
         format!(
             "{PLACEHOLDER_START}: no participant was flagged; state any exclusions for other reasons, or delete this sentence]"

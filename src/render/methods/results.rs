@@ -28,7 +28,7 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
     }
 
     let cohort = &report.cohort;
-    sentences.push(if cohort.ok == cohort.subjects {
+    sentences.push(if cohort.statuses.ok == cohort.subjects {
         format!(
             "None of the {} reached caution or severe status.",
             count(cohort.subjects, "participant", "participants")
@@ -37,9 +37,9 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
         format!(
             "Of the {}, {} reached severe status, {} caution and {} neither.",
             count(cohort.subjects, "participant", "participants"),
-            cohort.severe,
-            cohort.caution,
-            cohort.ok
+            cohort.statuses.severe,
+            cohort.statuses.caution,
+            cohort.statuses.ok
         )
     });
 

@@ -33,14 +33,17 @@ fn messages(text: &str) -> Vec<String> {
 fn minimal_study_gets_the_documented_defaults() {
     let study = parse(MINIMAL).unwrap();
     assert_eq!(study.name, "study");
-    assert_eq!(study.acquisition.tr, 2.0);
-    assert_eq!(study.acquisition.scans, ScanCounts::Fixed(100));
+    assert_eq!(study.acquisition.tr, Some(2.0));
+    assert_eq!(study.acquisition.scans, Some(ScanCounts::Fixed(100)));
     assert_eq!(study.acquisition.microtime, 16);
     assert_eq!(study.acquisition.reference, 0.5);
     assert_eq!(study.high_pass, 128.0);
     assert!(!study.hrf.derivative);
-    assert_eq!(study.trials.file, Path::new("lab/trials.csv"));
-    assert_eq!(study.trials.subject_column, "subject");
+    let TrialSource::Table(table) = &study.source else {
+        panic!("a trial table study");
+    };
+    assert_eq!(table.file, Path::new("lab/trials.csv"));
+    assert_eq!(table.labels.subject, "subject");
     assert_eq!(study.events[0].duration, Duration::Seconds(0.0));
     assert_eq!(study.models[0].modulators[0].column, "pe");
     assert_eq!(study.thresholds, Thresholds::default());
