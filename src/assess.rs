@@ -5,6 +5,7 @@
 use crate::design::{build_design, orthogonalise};
 use crate::diagnose::diagnose;
 use crate::error::Result;
+use crate::flags::FlagCode;
 use crate::report::{OrthogonalisedView, RunReport, RunScreening};
 use crate::screen::{claim_flags, entangled_dimensions, entanglement_flags, run_status, vif_flags};
 use crate::settings::RunSettings;
@@ -34,7 +35,7 @@ pub fn assess_run(
         let absorbed = serial
             .flags
             .into_iter()
-            .filter(|f| f.code == "absorbed_by_orthogonalisation");
+            .filter(|f| f.code == FlagCode::AbsorbedByOrthogonalisation);
         flags.extend(absorbed);
         view
     });

@@ -28,12 +28,74 @@ impl Severity {
     }
 }
 
+/// What a flag is about: a stable machine-readable code, written in every output as its
+/// snake-case name (e.g. `vif_severe`). The README's flag table says what each means.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FlagCode {
+    // Reading the run.
+    SameOnset,
+    TrDisagreesWithData,
+    ScansDisagreeWithData,
+    SliceTimingReference,
+    // Building the design.
+    EventAbsent,
+    OnsetAfterRunEnd,
+    NegativeOnset,
+    MissingDuration,
+    MissingValues,
+    ConstantModulator,
+    ModulatorAbsent,
+    AbsorbedByOrthogonalisation,
+    // Diagnosing it.
+    ExactDependency,
+    VanishesAfterFiltering,
+    // Screening it.
+    VifCaution,
+    VifSevere,
+    NearDependency,
+    SharedExceedsUnique,
+    // Measured signals.
+    UniqueSharesOverlap,
+}
+
+impl FlagCode {
+    /// The code as outputs write it.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            FlagCode::SameOnset => "same_onset",
+            FlagCode::TrDisagreesWithData => "tr_disagrees_with_data",
+            FlagCode::ScansDisagreeWithData => "scans_disagree_with_data",
+            FlagCode::SliceTimingReference => "slice_timing_reference",
+            FlagCode::EventAbsent => "event_absent",
+            FlagCode::OnsetAfterRunEnd => "onset_after_run_end",
+            FlagCode::NegativeOnset => "negative_onset",
+            FlagCode::MissingDuration => "missing_duration",
+            FlagCode::MissingValues => "missing_values",
+            FlagCode::ConstantModulator => "constant_modulator",
+            FlagCode::ModulatorAbsent => "modulator_absent",
+            FlagCode::AbsorbedByOrthogonalisation => "absorbed_by_orthogonalisation",
+            FlagCode::ExactDependency => "exact_dependency",
+            FlagCode::VanishesAfterFiltering => "vanishes_after_filtering",
+            FlagCode::VifCaution => "vif_caution",
+            FlagCode::VifSevere => "vif_severe",
+            FlagCode::NearDependency => "near_dependency",
+            FlagCode::SharedExceedsUnique => "shared_exceeds_unique",
+            FlagCode::UniqueSharesOverlap => "unique_shares_overlap",
+        }
+    }
+}
+
+impl std::fmt::Display for FlagCode {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Flag {
     pub severity: Severity,
-    /// A stable machine-readable code, e.g. `vif_severe` (owned only when read back
-    /// from a report's JSON).
-    pub code: std::borrow::Cow<'static, str>,
+    pub code: FlagCode,
     /// Names of the regressors involved (may be empty).
     pub regressors: Vec<String>,
     pub message: String,
@@ -42,15 +104,35 @@ pub struct Flag {
 impl Flag {
     pub fn new(
         severity: Severity,
-        code: &'static str,
+        code: FlagCode,
         regressors: Vec<String>,
         message: impl Into<String>,
     ) -> Self {
         Flag {
             severity,
-            code: std::borrow::Cow::Borrowed(code),
+            code,
             regressors,
             message: message.into(),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn codes_serialise_as_their_written_names() {
+        for code in [
+            FlagCode::SameOnset,
+            FlagCode::AbsorbedByOrthogonalisation,
+            FlagCode::VifSevere,
+            FlagCode::UniqueSharesOverlap,
+        ] {
+            let json = serde_json::to_string(&code).expect("serialised");
+            assert_eq!(json, format!("\"{}\"", code.as_str()));
+            let back: FlagCode = serde_json::from_str(&json).expect("read back");
+            assert_eq!(back, code);
         }
     }
 }

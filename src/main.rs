@@ -12,8 +12,8 @@ use tangle::cli::{Cli, Command, FailOn, ForecastArgs, Format, Orthogonalise, Out
 use tangle::cohort::SubjectSummary;
 use tangle::error::Error;
 use tangle::files::DiskFiles;
-use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
-use tangle::output::{deliver, print_to_stdout};
+use tangle::forecast::{ForecastOptions, read_spec, run_forecast};
+use tangle::output::{deliver, print_to_stdout, write_trial_folders};
 use tangle::render::{check_report, forecast_report};
 use tangle::screen::Status;
 use tangle::settings::AnalysisOptions;

@@ -106,6 +106,24 @@ pub fn write_tables(
     Ok(())
 }
 
+/// Writes one folder per variant of a forecast under `dir` (see
+/// [`crate::forecast::write::variant_files`]); each file appears whole or not at all.
+pub fn write_trial_folders(
+    dir: &Path,
+    spec: &crate::forecast::spec::ForecastSpec,
+    forecast: &crate::forecast::Forecast,
+) -> Result<()> {
+    use crate::forecast::write::{folder_name, variant_files};
+    for (i, (variant, participants)) in spec.variants.iter().zip(&forecast.participants).enumerate()
+    {
+        let folder = dir.join(folder_name(i + 1, &variant.name));
+        for (name, contents) in variant_files(spec, variant, participants) {
+            write_atomically(&folder.join(name), &contents)?;
+        }
+    }
+    Ok(())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

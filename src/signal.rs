@@ -16,6 +16,7 @@ use serde::{Deserialize, Serialize};
 use crate::design::filter::DriftBasis;
 use crate::diagnose::commonality;
 use crate::diagnose::partition::Group;
+use crate::quantile;
 
 #[derive(Debug, Clone, Copy)]
 pub struct BootstrapSettings {
@@ -177,23 +178,14 @@ pub fn partition_region(
                 SignalComponent {
                     groups: crate::diagnose::partition::names_in(groups, *mask),
                     share: *share,
-                    low: percentile(draws, 0.025).unwrap_or(*share),
-                    high: percentile(draws, 0.975).unwrap_or(*share),
+                    low: quantile::nearest_rank(draws, 0.025).unwrap_or(*share),
+                    high: quantile::nearest_rank(draws, 0.975).unwrap_or(*share),
                 }
             })
             .collect(),
         block_length: block,
         resamples: settings.resamples,
     }
-}
-
-/// Nearest-rank percentile of sorted values.
-fn percentile(sorted: &[f64], p: f64) -> Option<f64> {
-    if sorted.is_empty() {
-        return None;
-    }
-    let rank = ((p * sorted.len() as f64).ceil() as usize).clamp(1, sorted.len());
-    Some(sorted[rank - 1])
 }
 
 /// A stable 64-bit FNV-1a hash, so every run and region gets its own bootstrap stream
@@ -258,7 +250,7 @@ pub fn partition_signals(
 /// A warning wherever two models' unique shares of a region cannot be told apart: their
 /// bootstrap intervals overlap, so "model A explains this region better" is not shown.
 pub fn uncertainty_flags(regions: &[RegionPartition]) -> Vec<crate::flags::Flag> {
-    use crate::flags::{Flag, Severity};
+    use crate::flags::{Flag, FlagCode, Severity};
     let mut flags = Vec::new();
     for region in regions {
         let unique: Vec<&SignalComponent> = region
@@ -274,7 +266,7 @@ pub fn uncertainty_flags(regions: &[RegionPartition]) -> Vec<crate::flags::Flag>
                 let (larger, smaller) = if a.share >= b.share { (a, b) } else { (b, a) };
                 flags.push(Flag::new(
                     Severity::Warning,
-                    "unique_shares_overlap",
+                    FlagCode::UniqueSharesOverlap,
                     Vec::new(),
                     format!(
                         "region {}: the variance unique to {} ({:.4}, 95% interval {:.4} to {:.4}) and unique to {} ({:.4}, {:.4} to {:.4}) overlap within the bootstrap uncertainty, so neither model can be said to explain this region better; the models share {:.4} of it",
@@ -294,17 +286,4 @@ pub fn uncertainty_flags(regions: &[RegionPartition]) -> Vec<crate::flags::Flag>
         }
     }
     flags
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn nearest_rank_percentiles() {
-        let values: Vec<f64> = (1..=200).map(f64::from).collect();
-        assert_eq!(percentile(&values, 0.025), Some(5.0));
-        assert_eq!(percentile(&values, 0.975), Some(195.0));
-        assert_eq!(percentile(&[], 0.5), None);
-    }
 }

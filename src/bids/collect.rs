@@ -12,7 +12,7 @@ use super::sidecar::resolve_sidecar;
 use super::{RUN_COLUMN, SUBJECT_COLUMN};
 use crate::error::{Error, Location, Problem, Problems, Result};
 use crate::files::InputFiles;
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 use crate::study::{BidsSource, LabelColumns, MAX_PLAUSIBLE_TR, ScanCounts, Study};
 use crate::trials::{RunTrials, ScanTable, Table, collect_runs};
 
@@ -110,7 +110,7 @@ fn acquisition(
             if (given - found).abs() > TR_TOLERANCE {
                 flags.push(Flag::new(
                     Severity::Warning,
-                    "tr_disagrees_with_data",
+                    FlagCode::TrDisagreesWithData,
                     Vec::new(),
                     format!("the study file's tr = {given} s overrides RepetitionTime = {found} s in {}", file.display()),
                 ));
@@ -152,7 +152,7 @@ fn acquisition(
             if given != header.volumes {
                 flags.push(Flag::new(
                     Severity::Warning,
-                    "scans_disagree_with_data",
+                    FlagCode::ScansDisagreeWithData,
                     Vec::new(),
                     format!(
                         "the study file's scans = {given} overrides the {} volumes in {}",
@@ -224,7 +224,7 @@ fn slice_timing_note(
     ((suggested - reference).abs() > 0.05).then(|| {
         Flag::new(
             Severity::Note,
-            "slice_timing_reference",
+            FlagCode::SliceTimingReference,
             Vec::new(),
             format!(
                 "SliceTiming in {} spans {first}–{last} s; the middle of that span is {:.2} of the TR, the study samples at reference = {reference}. If slice-timing correction aligns the data to the middle slice time, set [acquisition] reference = {suggested:.2}.",

@@ -40,8 +40,22 @@ impl StatusCounts {
         }
     }
 
+    /// Those at exactly `status`.
+    pub fn at(&self, status: Status) -> usize {
+        match status {
+            Status::Ok => self.ok,
+            Status::Caution => self.caution,
+            Status::Severe => self.severe,
+        }
+    }
+
     pub fn total(&self) -> usize {
         self.ok + self.caution + self.severe
+    }
+
+    /// The share of all (0 when there are none) that `count` is.
+    pub fn share(&self, count: usize) -> f64 {
+        count as f64 / self.total().max(1) as f64
     }
 
     /// Those at `status` or worse.

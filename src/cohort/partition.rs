@@ -7,6 +7,7 @@ use std::collections::HashMap;
 use serde::{Deserialize, Serialize};
 
 use crate::diagnose::partition::RegressorPartition;
+use crate::quantile;
 
 /// `unique`, or the group shared with (a model's name, `task`, `nuisance`).
 pub const UNIQUE: &str = "unique";
@@ -109,18 +110,12 @@ pub fn summarise(means: &[ParticipantShare]) -> Vec<CohortShare> {
                 regressor: regressor.to_string(),
                 part: part.to_string(),
                 participants: values.len(),
-                median: median(&values).unwrap_or(values[0]),
+                median: quantile::median(&values).unwrap_or(values[0]),
                 min: values[0],
                 max: values[values.len() - 1],
             }
         })
         .collect()
-}
-
-/// Median of the values (statrs); `None` when there are none.
-pub fn median(values: &[f64]) -> Option<f64> {
-    use statrs::statistics::{Data, Median};
-    (!values.is_empty()).then(|| Data::new(values.to_vec()).median())
 }
 
 #[cfg(test)]

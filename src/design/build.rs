@@ -7,7 +7,7 @@ use super::hrf::{Kernel, sampled};
 use super::regressors::{Grid, event_regressor};
 use super::{Design, EventSummary, Regressor, RegressorKind, TrialValues};
 use crate::error::{Error, Location, Problem};
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 use crate::study::ModelSpec;
 use crate::trials::{EventTrials, NuisanceTable, RunTrials};
 
@@ -90,7 +90,7 @@ pub fn build_design(
         if trials == 0 {
             flags.push(Flag::new(
                 Severity::Severe,
-                "event_absent",
+                FlagCode::EventAbsent,
                 vec![event.name.clone()],
                 format!(
                     "event \"{}\" has no trials in this run; its regressors are left out",
@@ -325,7 +325,7 @@ fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Ve
     if !late.is_empty() {
         flags.push(Flag::new(
             Severity::Caution,
-            "onset_after_run_end",
+            FlagCode::OnsetAfterRunEnd,
             vec![event.name.clone()],
             format!(
                 "{} trial(s) of \"{}\" start after the run ends at {run_end} s and are ignored (trial table line(s) {}); check the TR, the scan count and that onsets are in seconds",
@@ -339,7 +339,7 @@ fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Ve
     if early > 0 {
         flags.push(Flag::new(
             Severity::Note,
-            "negative_onset",
+            FlagCode::NegativeOnset,
             vec![event.name.clone()],
             format!("{early} trial(s) of \"{}\" start before the first scan; the part of their response inside the run is modelled", event.name),
         ));
@@ -347,7 +347,7 @@ fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Ve
     if event.missing_durations > 0 {
         flags.push(Flag::new(
             Severity::Note,
-            "missing_duration",
+            FlagCode::MissingDuration,
             vec![event.name.clone()],
             format!(
                 "{} trial(s) of \"{}\" have no duration and are modelled as impulses (0 s)",
@@ -372,7 +372,7 @@ fn modulator_flags(
     if missing > 0 && present > 0 {
         flags.push(Flag::new(
             Severity::Note,
-            "missing_values",
+            FlagCode::MissingValues,
             vec![name.to_string()],
             format!("{missing} of {trials} trials of \"{}\" have no value for {name}; they contribute 0 to the modulator", event.name),
         ));
@@ -380,14 +380,14 @@ fn modulator_flags(
     if present > 0 && heights.iter().all(|h| *h == 0.0) {
         flags.push(Flag::new(
             Severity::Severe,
-            "constant_modulator",
+            FlagCode::ConstantModulator,
             vec![name.to_string()],
             format!("{name} does not vary over the trials of this run; it is left out of the design and its VIF is undefined"),
         ));
     } else if present == 0 {
         flags.push(Flag::new(
             Severity::Severe,
-            "modulator_absent",
+            FlagCode::ModulatorAbsent,
             vec![name.to_string()],
             format!("{name} has no values in this run; it is left out of the design"),
         ));

@@ -10,7 +10,7 @@
 //! alone says.
 
 use super::{Design, RegressorKind};
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 
 /// A remainder shorter than this fraction of the column means the modulator lay
 /// entirely in the span of the modulators before it.
@@ -39,7 +39,7 @@ pub fn serial(design: &Design) -> Design {
             let name = &design.regressors[index].name;
             result.flags.push(Flag::new(
                 Severity::Severe,
-                "absorbed_by_orthogonalisation",
+                FlagCode::AbsorbedByOrthogonalisation,
                 vec![name.clone()],
                 format!("{name} lies entirely in the span of the modulators before it; serial orthogonalisation leaves nothing of it"),
             ));

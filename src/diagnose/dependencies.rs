@@ -10,7 +10,7 @@ use nalgebra::{DMatrix, DVector};
 use serde::{Deserialize, Serialize};
 
 use super::UnitColumns;
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 
 /// Length below which the part of a unit-length column not explained by the columns
 /// before it counts as zero (stated in the README).
@@ -56,7 +56,7 @@ impl Dependency {
     pub fn flag(&self) -> Flag {
         Flag::new(
             Severity::Severe,
-            "exact_dependency",
+            FlagCode::ExactDependency,
             self.regressors.clone(),
             format!(
                 "exact linear dependency in the filtered design: {}; these regressors cannot be estimated separately and their VIFs are undefined",

@@ -26,7 +26,7 @@ pub use spectrum::Spectrum;
 use nalgebra::DMatrix;
 
 use crate::design::{Design, RegressorKind};
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 use partition::Group;
 use triangle::Triangle;
 
@@ -431,7 +431,7 @@ fn active_columns(design: &Design, flags: &mut Vec<Flag>) -> Vec<usize> {
             let name = &design.regressors[index].name;
             flags.push(Flag::new(
                 Severity::Severe,
-                "vanishes_after_filtering",
+                FlagCode::VanishesAfterFiltering,
                 vec![name.clone()],
                 format!(
                     "{name} is (numerically) constant or a slow drift: the constant and the high-pass filter remove all of it, so it cannot be estimated"

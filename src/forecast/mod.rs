@@ -44,20 +44,3 @@ pub fn read_spec(
     schedule::load_schedules(files, &mut spec)?;
     Ok(spec)
 }
-
-/// Writes one folder per variant under `dir` (see [`write::variant_files`]); each file
-/// appears whole or not at all.
-pub fn write_trial_folders(
-    dir: &Path,
-    spec: &spec::ForecastSpec,
-    forecast: &Forecast,
-) -> crate::Result<()> {
-    for (i, (variant, participants)) in spec.variants.iter().zip(&forecast.participants).enumerate()
-    {
-        let folder = dir.join(write::folder_name(i + 1, &variant.name));
-        for (name, contents) in write::variant_files(spec, variant, participants) {
-            crate::output::write_atomically(&folder.join(name), &contents)?;
-        }
-    }
-    Ok(())
-}

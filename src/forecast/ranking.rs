@@ -9,12 +9,12 @@
 //! particular participants simulated.
 
 use rand::RngExt;
-use statrs::statistics::{Data, OrderStatistics};
 
 use super::participant::{CUE, OUTCOME};
 use super::report::{RankEntry, VariantForecast};
 use super::simulate::{Stream, stream};
 use super::spec::{ForecastSpec, RankBy};
+use crate::quantile;
 
 /// Bootstrap resamples behind `chance_best`.
 pub const RESAMPLES: usize = 1000;
@@ -39,7 +39,8 @@ pub fn score_of(values: &FocusValues, draw: &[usize]) -> Option<f64> {
         if pooled.is_empty() {
             continue;
         }
-        let median = Data::new(pooled).quantile(0.5);
+        let pooled = quantile::sorted(pooled);
+        let median = quantile::type8(&pooled, 0.5)?;
         if !median.is_finite() {
             return None;
         }
@@ -48,28 +49,46 @@ pub fn score_of(values: &FocusValues, draw: &[usize]) -> Option<f64> {
     worst.is_finite().then_some(worst)
 }
 
+/// How often each variant came first over the paired bootstrap resamples.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ChanceBest {
+    /// Per variant, its wins divided by the number of resamples.
+    pub shares: Vec<f64>,
+    /// Resamples in which no variant had a defined score: no winner.
+    pub no_winner: usize,
+}
+
 /// Per variant, the share of paired bootstrap resamples in which it scores lowest
-/// (ties go to the variant listed first, as in the ranking).
-pub fn chance_best(spec: &ForecastSpec, variants: &[FocusValues]) -> Vec<f64> {
+/// (ties go to the variant listed first, as in the ranking). A resample in which every
+/// score is undefined has no winner: it counts for no variant.
+pub fn chance_best(spec: &ForecastSpec, variants: &[FocusValues]) -> ChanceBest {
     let participants = variants.first().map_or(0, Vec::len);
     let mut wins = vec![0usize; variants.len()];
     if participants == 0 {
-        return vec![0.0; variants.len()];
+        return ChanceBest {
+            shares: vec![0.0; variants.len()],
+            no_winner: 0,
+        };
     }
+    let mut no_winner = 0;
     let mut rng = stream(spec.seed, 0, Stream::Ranking);
     for _ in 0..RESAMPLES {
         let draw: Vec<usize> = (0..participants)
             .map(|_| rng.random_range(0..participants))
             .collect();
         let best = (0..variants.len())
-            .map(|v| (v, score_of(&variants[v], &draw).unwrap_or(f64::INFINITY)))
+            .filter_map(|v| score_of(&variants[v], &draw).map(|score| (v, score)))
             .min_by(|a, b| a.1.total_cmp(&b.1).then(a.0.cmp(&b.0)))
             .map(|(v, _)| v);
-        if let Some(v) = best {
-            wins[v] += 1;
+        match best {
+            Some(v) => wins[v] += 1,
+            None => no_winner += 1,
         }
     }
-    wins.iter().map(|&w| w as f64 / RESAMPLES as f64).collect()
+    ChanceBest {
+        shares: wins.iter().map(|&w| w as f64 / RESAMPLES as f64).collect(),
+        no_winner,
+    }
 }
 
 /// The score of one variant on all its participants, with the reason when undefined.
@@ -106,7 +125,7 @@ pub fn score(spec: &ForecastSpec, variant: &mut VariantForecast) {
 pub fn rank(
     spec: &ForecastSpec,
     variants: &[VariantForecast],
-    chance: &[f64],
+    chance: &ChanceBest,
 ) -> (Vec<RankEntry>, String) {
     let mut order: Vec<usize> = (0..variants.len()).collect();
     order.sort_by(|&a, &b| {
@@ -120,7 +139,7 @@ pub fn rank(
             rank: r + 1,
             variant: variants[i].name.clone(),
             score: variants[i].score,
-            chance_best: chance.get(i).copied().unwrap_or(0.0),
+            chance_best: chance.shares.get(i).copied().unwrap_or(0.0),
         })
         .collect();
     let what = match spec.rank_by {
@@ -135,7 +154,7 @@ pub fn rank(
     } else {
         "separates the learners best"
     };
-    let verdict = match (ranking.first(), variants.first()) {
+    let mut verdict = match (ranking.first(), variants.first()) {
         (Some(best), Some(planned)) if best.score.is_some() => {
             let format = |v: Option<f64>| v.map_or("undefined".into(), |v| format!("{v:.3}"));
             let sure = format!(
@@ -166,6 +185,12 @@ pub fn rank(
             "No variant has a defined {what} over {focus}: every one has exact dependencies in at least half of its runs."
         ),
     };
+    if chance.no_winner > 0 {
+        verdict.push_str(&format!(
+            " In {} of {RESAMPLES} bootstrap resamples no variant had a defined score; they count as won by none.",
+            chance.no_winner
+        ));
+    }
     (ranking, verdict)
 }
 
@@ -186,5 +211,30 @@ mod tests {
         assert_eq!(score_of(&values, &[0, 0]), Some(11.0));
         // Participant 1 twice: the second regressor's median is among the undefined.
         assert_eq!(score_of(&values, &[1, 1]), None);
+    }
+
+    #[test]
+    fn a_resample_where_every_score_is_undefined_has_no_winner() {
+        // Every run of every participant undefined in both variants: no resample has a
+        // winner, so neither variant is credited (the first used to win them all).
+        let undefined: FocusValues = vec![vec![vec![None]]; 3];
+        let spec = crate::forecast::spec::parse_forecast(
+            std::path::Path::new("spec.toml"),
+            include_str!("../../demo-data/forecast.toml"),
+        )
+        .expect("the demo spec");
+        let chance = chance_best(&spec, &[undefined.clone(), undefined]);
+        assert_eq!(chance.shares, vec![0.0, 0.0]);
+        assert_eq!(chance.no_winner, RESAMPLES);
+        // One participant defined in the second variant only: that variant wins the
+        // resamples that draw the participant at least twice (its median is then
+        // defined), the others have no winner.
+        let mut some: FocusValues = vec![vec![vec![None]]; 3];
+        some[0][0][0] = Some(2.0);
+        let chance = chance_best(&spec, &[vec![vec![vec![None]]; 3], some]);
+        assert_eq!(chance.shares[0], 0.0);
+        let won = (chance.shares[1] * RESAMPLES as f64).round() as usize;
+        assert_eq!(won + chance.no_winner, RESAMPLES);
+        assert!(won > 0 && chance.no_winner > 0);
     }
 }

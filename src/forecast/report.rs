@@ -3,7 +3,8 @@
 use serde::Serialize;
 
 use super::spec::{ForecastSpec, Interval, RankBy, Reversal, Rewards, RunLength, Task};
-use super::summary::{ModelSetForecast, Recovery, RegressorForecast, StatusCounts};
+use super::summary::{ModelSetForecast, Recovery, RegressorForecast};
+use crate::cohort::StatusCounts;
 use crate::report::ToolInfo;
 use crate::study::Thresholds;
 

@@ -11,8 +11,9 @@ use super::report::{FORECAST_CAUTIONS, ForecastInfo, ForecastReport, TaskInfo, V
 use super::simulate::draw_persona;
 use super::spec::{ForecastSpec, RankBy};
 use super::summary::{
-    Recovery, RunDigest, StatusCounts, Tracked, model_set_forecast, pearson, regressor_forecast,
+    Recovery, RunDigest, Tracked, model_set_forecast, pearson, regressor_forecast,
 };
+use crate::cohort::StatusCounts;
 use crate::error::Result;
 
 /// What a caller may want besides the report.
@@ -127,10 +128,7 @@ fn summarise_variant(
     outcomes: &[Outcome],
 ) -> VariantForecast {
     let runs: Vec<&RunDigest> = outcomes.iter().flat_map(|o| &o.runs).collect();
-    let mut participants = StatusCounts::default();
-    for o in outcomes {
-        participants.add(o.status);
-    }
+    let participants = StatusCounts::of(outcomes.iter().map(|o| o.status));
     let regressors = tracked
         .iter()
         .enumerate()

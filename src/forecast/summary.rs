@@ -2,16 +2,16 @@
 //! spread of VIFs and of the share held with other models, per learner the spread of
 //! the model-set GVIF, the participants' statuses, and parameter recovery.
 //!
-//! Quantiles are statrs's estimator (Hyndman & Fan 1996 type 8). Where a run has an
+//! Quantiles are Hyndman & Fan's (1996) type 8 ([`crate::quantile::type8`]). Where a run has an
 //! exact dependency its VIF is undefined; such runs count as above every defined value,
 //! so a quantile that falls among them is `null` and the `undefined_runs` count says
 //! why.
 
 use serde::Serialize;
-use statrs::statistics::{Data, OrderStatistics};
 
 use crate::design::RegressorKind;
 use crate::diagnose::partition::{NUISANCE, TASK};
+use crate::quantile;
 use crate::report::RunReport;
 use crate::screen::Status;
 use crate::study::Thresholds;
@@ -31,14 +31,8 @@ pub struct Spread {
 impl Spread {
     /// Undefined values sort above every defined one.
     pub fn of(values: &[Option<f64>]) -> Spread {
-        let numbers: Vec<f64> = values.iter().map(|v| v.unwrap_or(f64::INFINITY)).collect();
-        let quantile = |tau: f64| {
-            if numbers.is_empty() {
-                return None;
-            }
-            let q = Data::new(numbers.clone()).quantile(tau);
-            q.is_finite().then_some(q)
-        };
+        let numbers = quantile::sorted(values.iter().map(|v| v.unwrap_or(f64::INFINITY)));
+        let quantile = |tau: f64| quantile::type8(&numbers, tau).filter(|q| q.is_finite());
         Spread {
             median: quantile(0.5),
             p10: quantile(0.1),
@@ -240,28 +234,6 @@ pub fn pearson(x: &[f64], y: &[f64]) -> Option<f64> {
     r.is_finite().then_some(r)
 }
 
-/// Participants by their worst run's status.
-#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize)]
-pub struct StatusCounts {
-    pub ok: usize,
-    pub caution: usize,
-    pub severe: usize,
-}
-
-impl StatusCounts {
-    pub fn add(&mut self, status: Status) {
-        match status {
-            Status::Ok => self.ok += 1,
-            Status::Caution => self.caution += 1,
-            Status::Severe => self.severe += 1,
-        }
-    }
-
-    pub fn total(&self) -> usize {
-        self.ok + self.caution + self.severe
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -283,6 +255,16 @@ mod tests {
         assert_eq!(spread.p90, None, "the top 20 % are undefined");
         assert!(spread.median.is_some());
         assert_eq!(Spread::of(&[]).median, None);
+    }
+
+    #[test]
+    fn a_median_on_a_defined_value_stays_defined_beside_undefined_runs() {
+        // Type 8 at n = 3 puts the median exactly on the 2nd value; the undefined run
+        // above it must not make it null (0·∞ was NaN).
+        assert_eq!(Spread::of(&[Some(1.0), Some(2.0), None]).median, Some(2.0));
+        let five = [Some(1.0), Some(2.0), Some(3.0), None, None];
+        assert_eq!(Spread::of(&five).median, Some(3.0));
+        assert_eq!(Spread::of(&five).p90, None);
     }
 
     #[test]

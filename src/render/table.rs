@@ -1,6 +1,7 @@
 //! `--format table` (the default): a compact block per run and a per-participant
 //! summary, for reading in a terminal.
 
+use crate::flags::FlagCode;
 use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyle};
 
 use super::format::ratio;
@@ -47,10 +48,11 @@ pub fn render(report: &Report) -> String {
         report.cohort.subjects,
         READING_NOTES
     ));
-    let comparisons_unsupported = report
-        .runs
-        .iter()
-        .any(|r| r.flags.iter().any(|f| f.code == "shared_exceeds_unique"));
+    let comparisons_unsupported = report.runs.iter().any(|r| {
+        r.flags
+            .iter()
+            .any(|f| f.code == FlagCode::SharedExceedsUnique)
+    });
     if comparisons_unsupported {
         let note = wrap(&report.claims_note, 90, "  ");
         text.push_str(&format!("\nComparing models\n{note}\n"));
@@ -228,7 +230,7 @@ fn run_block(run: &RunReport) -> String {
     let mut flags: Vec<_> = run
         .flags
         .iter()
-        .filter(|f| f.code != "near_dependency")
+        .filter(|f| f.code != FlagCode::NearDependency)
         .collect();
     flags.sort_by_key(|flag| std::cmp::Reverse(flag.severity));
     for flag in flags {
@@ -250,7 +252,7 @@ fn entanglement(run: &RunReport) -> String {
         let severity = run
             .flags
             .iter()
-            .find(|f| f.code == "near_dependency" && f.regressors == dimension.regressors)
+            .find(|f| f.code == FlagCode::NearDependency && f.regressors == dimension.regressors)
             .map_or("note", |f| f.severity.label());
         let members: Vec<String> = dimension
             .regressors

@@ -9,7 +9,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::design::{Design, RegressorKind};
 use crate::diagnose::Diagnostics;
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 use crate::study::Thresholds;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -61,8 +61,12 @@ pub fn vif_flags(design: &Design, diagnostics: &Diagnostics, thresholds: &Thresh
             continue;
         };
         let (severity, code, limit) = match vif_status(Some(vif), thresholds) {
-            Status::Severe => (Severity::Severe, "vif_severe", thresholds.vif_severe),
-            Status::Caution => (Severity::Caution, "vif_caution", thresholds.vif_caution),
+            Status::Severe => (Severity::Severe, FlagCode::VifSevere, thresholds.vif_severe),
+            Status::Caution => (
+                Severity::Caution,
+                FlagCode::VifCaution,
+                thresholds.vif_caution,
+            ),
             Status::Ok => continue,
         };
         // Derivatives are reported but do not set a status: they absorb timing, not a hypothesis.
@@ -184,7 +188,7 @@ pub fn entanglement_flags(
                 .collect();
             Flag::new(
                 severity,
-                "near_dependency",
+                FlagCode::NearDependency,
                 dimension.regressors.clone(),
                 format!(
                     "near-dependency (condition index {:.1}, threshold {}): {} have most of their variance on one direction of the design, so their separate estimates are unstable",
@@ -225,7 +229,7 @@ pub fn claim_flags(
             let own = own_model.as_deref().unwrap_or("its model");
             flags.push(Flag::new(
                 Severity::Warning,
-                "shared_exceeds_unique",
+                FlagCode::SharedExceedsUnique,
                 vec![partition.regressor.clone()],
                 format!(
                     "{} shares {:.0}% of its variance with model {} and keeps only {:.0}% for itself: comparing {own} and {} on this regressor (betas, t-maps, explained variance) cannot show which model the signal follows",

@@ -74,7 +74,7 @@ pub struct Acquisition {
     /// Repetition time in seconds, as the study file gives it: required with a trial
     /// table; in a BIDS study it overrides the sidecars' `RepetitionTime` (with a flag
     /// when they disagree) and may be left out. The TR a check uses is resolved once,
-    /// when the runs are read (`crate::check::read`), and lives in its run settings.
+    /// when the runs are read (`check::read_runs`), and lives in its run settings.
     pub tr: Option<f64>,
     /// Volumes per run: required with a trial table; in a BIDS study an override of
     /// every image header (`ScanCounts::Fixed` only).

@@ -5,7 +5,7 @@ use foldhash::{HashMap, HashMapExt};
 
 use super::{Row, ScanTable, Table, check_label};
 use crate::error::{Error, Location, Problem, Problems, Result};
-use crate::flags::{Flag, Severity};
+use crate::flags::{Flag, FlagCode, Severity};
 use crate::study::{Duration, LabelColumns, Study};
 
 /// Everything the design builder needs to know about one run.
@@ -308,7 +308,7 @@ fn same_onset_flags(run: &mut RunTrials) {
         };
         run.flags.push(Flag::new(
             Severity::Caution,
-            "same_onset",
+            FlagCode::SameOnset,
             vec![event.name.clone()],
             format!(
                 "two trials of event \"{}\" start at {onset} s (trial table lines {first} and {second}){more}: they add up as one trial of twice the height; if a row was exported twice with different values, remove one",

@@ -236,7 +236,7 @@ fn the_study_file_overrides_the_data_with_a_flag() {
     let codes: Vec<&str> = report.runs[0]
         .flags
         .iter()
-        .map(|f| f.code.as_ref())
+        .map(|f| f.code.as_str())
         .collect();
     assert!(codes.contains(&"tr_disagrees_with_data"), "{codes:?}");
     assert!(codes.contains(&"scans_disagree_with_data"), "{codes:?}");
@@ -279,7 +279,7 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
     );
     for (b, f) in bids.runs.iter().zip(&flat.runs) {
         fn codes(r: &tangle::report::RunReport) -> Vec<&str> {
-            r.flags.iter().map(|f| f.code.as_ref()).collect()
+            r.flags.iter().map(|f| f.code.as_str()).collect()
         }
         assert_eq!(codes(b), codes(f), "subject {} run {}", b.subject, b.run);
         assert_eq!(b.status, f.status);
@@ -347,7 +347,7 @@ fn sessions_are_kept_in_every_output_and_fill_nuisance_templates() {
     let note = report.runs[0]
         .flags
         .iter()
-        .find(|f| f.code == "slice_timing_reference")
+        .find(|f| f.code.as_str() == "slice_timing_reference")
         .expect("a note");
     assert!(note.message.contains("0.30 of the TR"), "{}", note.message);
     let json = tangle::render::json::render(&report);

@@ -5,7 +5,8 @@ use std::path::Path;
 use tangle::check::{CheckOptions, check_file};
 use tangle::files::{DiskFiles, MemoryFiles};
 use tangle::forecast::summary::Spread;
-use tangle::forecast::{ForecastOptions, read_spec, run_forecast, write_trial_folders};
+use tangle::forecast::{ForecastOptions, read_spec, run_forecast};
+use tangle::output::write_trial_folders;
 
 /// A small two-learner spec: 2 runs of 40 trials, two timing variants.
 const SPEC: &str = r#"

@@ -67,8 +67,7 @@ fn ranking(report: &ForecastReport) -> String {
         let Some(v) = report.variants.iter().find(|v| v.name == entry.variant) else {
             continue;
         };
-        let n = v.participants.total().max(1) as f64;
-        let share = |count: usize| percent(count as f64 / n);
+        let share = |count: usize| percent(v.participants.share(count));
         table.add_row(vec![
             entry.rank.to_string(),
             v.name.clone(),

@@ -1,6 +1,7 @@
 //! Cautions: how to read the numbers, comparing models, and what the diagnostics cannot
 //! say.
 
+use crate::flags::FlagCode;
 use std::fmt::Write as _;
 
 use super::prose::prose;
@@ -25,7 +26,11 @@ pub(super) fn cautions(report: &Report) -> String {
                 .runs
                 .iter()
                 .filter(|r| r.subject == s.subject)
-                .any(|r| r.flags.iter().any(|f| f.code == "shared_exceeds_unique"))
+                .any(|r| {
+                    r.flags
+                        .iter()
+                        .any(|f| f.code == FlagCode::SharedExceedsUnique)
+                })
         })
         .count();
     if affected > 0 {

@@ -90,7 +90,7 @@ fn status_table(report: &Report) -> String {
             html,
             "<tr><td>{}</td><td class=\"num\">{}</td><td>{}</td><td>{}</td></tr>",
             badge(status),
-            who.len(),
+            report.cohort.statuses.at(status),
             if who.is_empty() {
                 "—".to_string()
             } else {

@@ -3,6 +3,7 @@
 use super::format::{count, percent, percent_range, vif};
 use super::layout::{Layout, Named};
 use crate::cohort::partition::UNIQUE;
+use crate::flags::FlagCode;
 use crate::report::Report;
 use crate::report::RunReport;
 
@@ -48,7 +49,9 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
     }
 
     let exact = participants_with(report, |run| {
-        run.flags.iter().any(|f| f.code == "exact_dependency")
+        run.flags
+            .iter()
+            .any(|f| f.code == FlagCode::ExactDependency)
     });
     let entangled = participants_with(report, |run| !run.entangled_dimensions.is_empty());
     let participants = |n| count(n, "participant", "participants");
@@ -97,7 +100,7 @@ fn vif_summary(runs: &[RunReport], named: &Named) -> String {
         }
     };
     match (
-        crate::cohort::partition::median(&values),
+        crate::quantile::median(&values),
         values.first(),
         values.last(),
     ) {

@@ -68,11 +68,10 @@ fn table(report: &ForecastReport) -> String {
         else {
             continue;
         };
-        let n = v.participants.total().max(1) as f64;
         let cell = |count: usize| {
             format!(
                 "{count} <span class=\"range\">({})</span>",
-                share(count as f64 / n)
+                share(v.participants.share(count))
             )
         };
         let note = v.score_note.as_deref().map_or_else(String::new, |note| {

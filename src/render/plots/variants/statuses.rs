@@ -6,6 +6,7 @@
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
+use crate::cohort::StatusCounts;
 use crate::forecast::report::ForecastReport;
 use crate::render::plots::legend::{Key, draw_legend};
 use crate::render::plots::palette::{EMBER, INK, MIST, SAND};
@@ -15,15 +16,7 @@ use crate::render::plots::{anchored, draw_svg, failed, label_width, text};
 pub struct StatusRow {
     /// "rank. name", as in the ranking table.
     pub label: String,
-    pub ok: usize,
-    pub caution: usize,
-    pub severe: usize,
-}
-
-impl StatusRow {
-    fn total(&self) -> usize {
-        self.ok + self.caution + self.severe
-    }
+    pub counts: StatusCounts,
 }
 
 pub fn status_rows(report: &ForecastReport) -> Vec<StatusRow> {
@@ -34,9 +27,7 @@ pub fn status_rows(report: &ForecastReport) -> Vec<StatusRow> {
             let v = report.variants.iter().find(|v| v.name == entry.variant)?;
             Some(StatusRow {
                 label: format!("{}. {}", entry.rank, v.name),
-                ok: v.participants.ok,
-                caution: v.participants.caution,
-                severe: v.participants.severe,
+                counts: v.participants,
             })
         })
         .collect()
@@ -45,7 +36,7 @@ pub fn status_rows(report: &ForecastReport) -> Vec<StatusRow> {
 const BAR: f64 = 26.0;
 
 pub fn status_bars(rows: &[StatusRow]) -> Result<String, String> {
-    if rows.iter().all(|r| r.total() == 0) {
+    if rows.iter().all(|r| r.counts.total() == 0) {
         return Err("no simulated participants to show".to_string());
     }
     let left = rows
@@ -85,9 +76,9 @@ pub fn status_bars(rows: &[StatusRow]) -> Result<String, String> {
         for (slot, row) in rows.iter().enumerate() {
             let top = plot_height - slot as f64 * BAR;
             let bottom = top - BAR;
-            let n = row.total().max(1) as f64;
-            let (ok, caution) = (row.ok as f64 / n, row.caution as f64 / n);
-            let severe = row.severe as f64 / n;
+            let counts = &row.counts;
+            let (ok, caution) = (counts.share(counts.ok), counts.share(counts.caution));
+            let severe = counts.share(counts.severe);
             let parts = [
                 (0.0, ok, SAND, false),
                 (ok, ok + caution, EMBER, false),
@@ -135,9 +126,11 @@ mod tests {
         assert!(status_bars(&[]).is_err());
         let row = StatusRow {
             label: "1. as planned".into(),
-            ok: 3,
-            caution: 1,
-            severe: 0,
+            counts: StatusCounts {
+                ok: 3,
+                caution: 1,
+                severe: 0,
+            },
         };
         let svg = status_bars(&[row]).expect("drawn");
         assert!(svg.contains("75%"));
