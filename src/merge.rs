@@ -191,10 +191,11 @@ impl Merged<'_> {
             study: serde_json::from_str(self.head.study.get()).map_err(unreadable)?,
             settings: serde_json::from_str(self.head.settings.get()).map_err(unreadable)?,
         };
+        let thresholds = head.settings.thresholds;
         let runs = self
             .runs
             .iter()
-            .map(|raw| serde_json::from_str::<RunReport>(raw.get()))
+            .map(|raw| RunReport::read(raw.get(), &thresholds))
             .collect::<std::result::Result<Vec<_>, _>>()
             .map_err(unreadable)?;
         Ok(Report::new(head, runs, self.summaries.clone()))

@@ -11,8 +11,8 @@ pub struct RunDigest {
     pub subject: String,
     pub run: String,
     pub status: Status,
-    /// (regressor, VIF) of the regressors of interest with a defined VIF.
-    pub vifs: Vec<(String, f64)>,
+    /// (regressor, VIF) of every regressor of interest; `None` where the VIF is undefined.
+    pub vifs: Vec<(String, Option<f64>)>,
     pub largest_condition_index: Option<f64>,
     /// (modulator, other model, share) for every share of a modulator with another model.
     pub shared: Vec<(String, String, f64)>,
@@ -39,7 +39,7 @@ impl RunDigest {
             vifs: regressors
                 .zip(vif)
                 .filter(|(r, _)| r.kind.of_interest())
-                .filter_map(|(r, v)| v.map(|v| (r.name.clone(), v)))
+                .map(|(r, v)| (r.name.clone(), *v))
                 .collect(),
             largest_condition_index: condition_indices.last().copied(),
             shared: partition

@@ -6,10 +6,12 @@
 mod digest;
 pub mod partition;
 mod subjects;
+mod vifs;
 
 pub use digest::RunDigest;
 pub use partition::{CohortShare, ParticipantShare};
 pub use subjects::{SharedShare, SubjectSummary, summarise_subjects};
+pub use vifs::{ParticipantVifs, RegressorVifs};
 
 use serde::{Deserialize, Serialize};
 
@@ -84,6 +86,10 @@ pub struct Summaries {
     pub cohort: Cohort,
     pub subject_partition: Vec<ParticipantShare>,
     pub cohort_partition: Vec<CohortShare>,
+    /// Each regressor of interest's VIFs over all runs.
+    pub regressor_vifs: Vec<RegressorVifs>,
+    /// Each regressor of interest's VIFs per participant.
+    pub participant_vifs: Vec<ParticipantVifs>,
 }
 
 /// The cohort views of the runs `digests`, in report order.
@@ -103,5 +109,7 @@ pub fn summarise(digests: &[RunDigest]) -> Summaries {
         cohort_partition: partition::summarise(&subject_partition),
         subject_partition,
         subjects,
+        regressor_vifs: vifs::over_runs(digests),
+        participant_vifs: vifs::per_participant(digests),
     }
 }

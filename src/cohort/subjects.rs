@@ -57,8 +57,7 @@ pub fn summarise_subjects(runs: &[RunDigest]) -> Vec<SubjectSummary> {
             }
         };
         let summary = &mut subjects[index];
-        for (name, vif) in &run.vifs {
-            let vif = *vif;
+        for (name, vif) in run.vifs.iter().filter_map(|(n, v)| v.map(|v| (n, v))) {
             if summary.worst_vif.is_none_or(|worst| vif > worst) {
                 summary.worst_vif = Some(vif);
                 summary.worst_regressor = Some(name.clone());
@@ -112,7 +111,10 @@ mod tests {
             subject: subject.into(),
             run: run.into(),
             status,
-            vifs: vifs.into_iter().map(|(n, v)| (n.to_string(), v)).collect(),
+            vifs: vifs
+                .into_iter()
+                .map(|(n, v)| (n.to_string(), Some(v)))
+                .collect(),
             largest_condition_index: largest,
             shared: vec![("a".into(), "m".into(), 0.5)],
             partition: Vec::new(),

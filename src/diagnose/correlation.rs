@@ -33,6 +33,16 @@ pub struct TrialCorrelation {
     pub trials: usize,
 }
 
+/// The regressor most correlated with regressor `index` (largest |r|; of equals, the
+/// last) and that correlation; `None` when no other correlation is defined.
+pub fn most_correlated(correlation: &[Vec<Option<f64>>], index: usize) -> Option<(usize, f64)> {
+    correlation[index]
+        .iter()
+        .enumerate()
+        .filter(|(other, _)| *other != index)
+        .filter_map(|(other, r)| r.map(|r| (other, r)))
+        .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))
+}
 pub fn trial_correlations(design: &Design) -> Vec<TrialCorrelation> {
     let mut result = Vec::new();
     for (a, first) in design.trial_values.iter().enumerate() {

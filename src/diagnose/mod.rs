@@ -15,7 +15,7 @@ pub mod triangle;
 mod vif;
 
 pub use conditioning::{Conditioning, belsley};
-pub use correlation::{TrialCorrelation, trial_correlations};
+pub use correlation::{TrialCorrelation, most_correlated, trial_correlations};
 pub use dependencies::{DEPENDENCY_TOLERANCE, Dependency};
 pub use efficiency::Contrast;
 pub use overlap::ModelOverlap;

@@ -96,6 +96,9 @@ pub struct TaskInfo {
     pub rewards: String,
     /// Plain-words run length, e.g. "330 volumes" or "until 16 s after the last outcome".
     pub run_length: String,
+    /// The task in one line (runs, trials, delays, rewards), as the ranking shows it.
+    #[serde(skip_serializing)]
+    pub summary: String,
 }
 
 impl TaskInfo {
@@ -119,7 +122,15 @@ impl TaskInfo {
             RunLength::Fixed(n) => format!("{n} volumes"),
             RunLength::AfterLastOutcome(s) => format!("until {s} s after the last outcome"),
         };
+        let summary = format!(
+            "{} runs × {} trials; cue→outcome {}; outcome→cue {}; {rewards}",
+            task.runs,
+            task.trials,
+            task.cue_to_outcome.describe(),
+            task.outcome_to_cue.describe(),
+        );
         TaskInfo {
+            summary,
             options: task.options,
             trials: task.trials,
             runs: task.runs,

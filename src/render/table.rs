@@ -248,12 +248,12 @@ fn run_block(run: &RunReport) -> String {
 /// The anatomy of a run's redundancy: near-dependencies, model sets, model differences.
 fn entanglement(run: &RunReport) -> String {
     let mut text = String::new();
-    for dimension in &run.entangled_dimensions {
-        let severity = run
-            .flags
-            .iter()
-            .find(|f| f.code == FlagCode::NearDependency && f.regressors == dimension.regressors)
-            .map_or("note", |f| f.severity.label());
+    for (dimension, severity) in run
+        .entangled_dimensions
+        .iter()
+        .zip(&run.views.dimension_severity)
+    {
+        let severity = severity.label();
         let members: Vec<String> = dimension
             .regressors
             .iter()

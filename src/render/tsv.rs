@@ -112,11 +112,7 @@ fn regressors(report: &Report) -> TsvTable {
     for run in &report.runs {
         for (index, entry) in run.regressors.iter().enumerate() {
             let regressor = &entry.regressor;
-            let partner = run.correlation[index]
-                .iter()
-                .enumerate()
-                .filter_map(|(other, r)| r.filter(|_| other != index).map(|r| (other, r)))
-                .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()));
+            let partner = run.views.partners[index];
             table.row(
                 run,
                 vec![

@@ -11,7 +11,10 @@ pub use settings::{DIAGNOSTICS_SPACE, HrfInfo, Settings};
 
 use serde::{Deserialize, Serialize};
 
-use crate::cohort::{Cohort, CohortShare, ParticipantShare, SubjectSummary, Summaries};
+use crate::cohort::{
+    Cohort, CohortShare, ParticipantShare, ParticipantVifs, RegressorVifs, SubjectSummary,
+    Summaries,
+};
 use crate::screen::CLAIMS_NOTE;
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -28,6 +31,13 @@ pub struct Report {
     pub cohort_partition: Vec<CohortShare>,
     /// Why shared variance limits model comparisons, and what to do instead.
     pub claims_note: Text,
+    /// Each regressor of interest's VIFs over all runs (computed with the cohort views;
+    /// not part of the JSON, which holds every run's VIFs).
+    #[serde(skip)]
+    pub regressor_vifs: Vec<RegressorVifs>,
+    /// Each regressor of interest's VIFs per participant (as above).
+    #[serde(skip)]
+    pub participant_vifs: Vec<ParticipantVifs>,
 }
 
 /// Fixed text of the tool (borrowed when made here, owned when read back from JSON by
@@ -75,6 +85,8 @@ impl Report {
             subject_partition: summaries.subject_partition,
             cohort_partition: summaries.cohort_partition,
             claims_note: Text::Borrowed(CLAIMS_NOTE),
+            regressor_vifs: summaries.regressor_vifs,
+            participant_vifs: summaries.participant_vifs,
         }
     }
 }

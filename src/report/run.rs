@@ -5,10 +5,11 @@ use serde::{Deserialize, Serialize};
 use super::Text;
 use crate::design::{Design, EventSummary, Regressor, RegressorKind};
 use crate::diagnose::{
-    Contrast, Dependency, Diagnostics, ModelOverlap, ModelSet, RegressorPartition, TrialCorrelation,
+    Contrast, Dependency, Diagnostics, ModelOverlap, ModelSet, RegressorPartition,
+    TrialCorrelation, most_correlated,
 };
-use crate::flags::Flag;
-use crate::screen::{EntangledDimension, Status, vif_status};
+use crate::flags::{Flag, Severity};
+use crate::screen::{EntangledDimension, Status, dimension_severity, vif_status};
 use crate::signal::RegionPartition;
 use crate::study::Thresholds;
 
@@ -61,6 +62,37 @@ pub struct RunReport {
     pub orthogonalised: Option<OrthogonalisedView>,
     pub flags: Vec<Flag>,
     pub status: Status,
+    /// What renderers show that the JSON does not hold, derived once from the numbers
+    /// above: when the run is assessed, and when it is read back ([`RunReport::read`]).
+    #[serde(skip)]
+    pub views: RunViews,
+}
+
+/// Derived facts a renderer shows about a run.
+#[derive(Debug, Clone, Default)]
+pub struct RunViews {
+    /// Per regressor, the regressor it is most correlated with (an index into
+    /// `regressors`) and that correlation.
+    pub partners: Vec<Option<(usize, f64)>>,
+    /// Per entangled dimension, how much it matters (as its `near_dependency` flag).
+    pub dimension_severity: Vec<Severity>,
+}
+
+impl RunViews {
+    fn of(run: &RunReport, thresholds: &Thresholds) -> Self {
+        let regressors: Vec<Regressor> =
+            run.regressors.iter().map(|r| r.regressor.clone()).collect();
+        RunViews {
+            partners: (0..run.regressors.len())
+                .map(|index| most_correlated(&run.correlation, index))
+                .collect(),
+            dimension_severity: run
+                .entangled_dimensions
+                .iter()
+                .map(|d| dimension_severity(d, &regressors, thresholds))
+                .collect(),
+        }
+    }
 }
 
 /// The numbers that serial orthogonalisation changes, beside the as-written ones.
@@ -162,7 +194,20 @@ impl RunReport {
             orthogonalised: screening.orthogonalised,
             flags: screening.flags,
             status: screening.status,
+            views: RunViews::default(),
         }
+        .with_views(thresholds)
+    }
+
+    /// A run report read back from its JSON (e.g. from a shard), with its views derived
+    /// as when it was assessed; `thresholds` are the report's settings.
+    pub fn read(json: &str, thresholds: &Thresholds) -> serde_json::Result<Self> {
+        serde_json::from_str::<RunReport>(json).map(|run| run.with_views(thresholds))
+    }
+
+    fn with_views(mut self, thresholds: &Thresholds) -> Self {
+        self.views = RunViews::of(&self, thresholds);
+        self
     }
 }
 

@@ -7,8 +7,8 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::design::{Design, RegressorKind};
-use crate::diagnose::Diagnostics;
+use crate::design::{Design, Regressor, RegressorKind};
+use crate::diagnose::{Diagnostics, most_correlated};
 use crate::flags::{Flag, FlagCode, Severity};
 use crate::study::Thresholds;
 
@@ -88,27 +88,14 @@ pub fn vif_flags(design: &Design, diagnostics: &Diagnostics, thresholds: &Thresh
             );
         }
         let mut involved = vec![regressor.name.clone()];
-        if let Some((other, r)) = most_correlated(design, diagnostics, index) {
+        if let Some((other, r)) = most_correlated(&diagnostics.correlation, index) {
+            let other = design.regressors[other].name.clone();
             message.push_str(&format!("; most correlated with {other} (r = {r:.2})"));
             involved.push(other);
         }
         flags.push(Flag::new(severity, code, involved, message));
     }
     flags
-}
-
-fn most_correlated(
-    design: &Design,
-    diagnostics: &Diagnostics,
-    index: usize,
-) -> Option<(String, f64)> {
-    diagnostics.correlation[index]
-        .iter()
-        .enumerate()
-        .filter(|(other, _)| *other != index)
-        .filter_map(|(other, r)| r.map(|r| (other, r)))
-        .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))
-        .map(|(other, r)| (design.regressors[other].name.clone(), r))
 }
 
 /// A direction of the design along which two or more regressors are nearly dependent:
@@ -163,6 +150,28 @@ pub fn entangled_dimensions(
     result
 }
 
+/// How much an entangled dimension matters: a note when none of its regressors is of
+/// interest, severe from `condition_index_severe` on, a caution below.
+pub fn dimension_severity(
+    dimension: &EntangledDimension,
+    regressors: &[Regressor],
+    thresholds: &Thresholds,
+) -> Severity {
+    let of_interest = dimension.regressors.iter().any(|name| {
+        regressors
+            .iter()
+            .any(|r| &r.name == name && r.kind.of_interest())
+    });
+    match (
+        of_interest,
+        dimension.condition_index >= thresholds.condition_index_severe,
+    ) {
+        (false, _) => Severity::Note,
+        (true, true) => Severity::Severe,
+        (true, false) => Severity::Caution,
+    }
+}
+
 /// One flag per entangled dimension; a note when none of its regressors is of interest.
 pub fn entanglement_flags(
     design: &Design,
@@ -172,14 +181,7 @@ pub fn entanglement_flags(
     dimensions
         .iter()
         .map(|dimension| {
-            let of_interest = dimension.regressors.iter().any(|name| {
-                design.regressors.iter().any(|r| &r.name == name && r.kind.of_interest())
-            });
-            let severity = match (of_interest, dimension.condition_index >= thresholds.condition_index_severe) {
-                (false, _) => Severity::Note,
-                (true, true) => Severity::Severe,
-                (true, false) => Severity::Caution,
-            };
+            let severity = dimension_severity(dimension, &design.regressors, thresholds);
             let members: Vec<String> = dimension
                 .regressors
                 .iter()

@@ -142,6 +142,15 @@ impl Interval {
             high: seconds,
         }
     }
+
+    /// In words: "4 s", or "2–6 s (uniform)" for a jittered delay.
+    pub fn describe(self) -> String {
+        if self.low == self.high {
+            format!("{} s", self.low)
+        } else {
+            format!("{}–{} s (uniform)", self.low, self.high)
+        }
+    }
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]

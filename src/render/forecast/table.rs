@@ -84,25 +84,6 @@ fn ranking(report: &ForecastReport) -> String {
     format!("{table}\n")
 }
 
-fn task_summary(v: &VariantForecast) -> String {
-    let t = &v.task;
-    let interval = |i: crate::forecast::spec::Interval| {
-        if i.low == i.high {
-            format!("{} s", i.low)
-        } else {
-            format!("{}–{} s", i.low, i.high)
-        }
-    };
-    format!(
-        "{} runs × {} trials; cue→outcome {}; outcome→cue {}; {}",
-        t.runs,
-        t.trials,
-        interval(t.cue_to_outcome),
-        interval(t.outcome_to_cue),
-        t.rewards
-    )
-}
-
 fn spread_cells(spread: &Spread, show: fn(Option<f64>) -> String) -> [String; 2] {
     [
         show(spread.median),
@@ -117,9 +98,7 @@ fn share(value: Option<f64>) -> String {
 fn variant_block(v: &VariantForecast) -> String {
     let mut text = format!(
         "Variant \"{}\": {} runs checked ({})\n",
-        v.name,
-        v.runs_checked,
-        task_summary(v)
+        v.name, v.runs_checked, v.task.summary
     );
     let mut table = new_table(&[
         "regressor",

@@ -26,7 +26,6 @@ use super::format::ratio;
 use crate::flags::Severity;
 use crate::report::Report;
 use crate::screen::Status;
-use crate::study::Thresholds;
 use cautions::cautions;
 use correlations::correlations;
 use header::header;
@@ -134,11 +133,6 @@ pub(crate) fn plain(value: f64) -> String {
     } else {
         "n/a".to_string()
     }
-}
-
-/// The status a VIF earns, for colouring a table cell.
-fn vif_status(vif: Option<f64>, thresholds: &Thresholds) -> Status {
-    crate::screen::vif_status(vif, thresholds)
 }
 
 /// A figure, or a short note where it could not be drawn.

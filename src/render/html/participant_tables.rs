@@ -3,10 +3,8 @@
 
 use std::fmt::Write as _;
 
-use super::{esc, glyph, number, percent, severity_badge, vif_status};
+use super::{esc, glyph, number, percent, severity_badge};
 use crate::report::RunReport;
-use crate::screen::Status;
-use crate::study::Thresholds;
 
 /// Names in the order they first appear over the runs.
 fn union<'a>(names: impl Iterator<Item = &'a str>) -> Vec<&'a str> {
@@ -25,7 +23,7 @@ fn run_headings(runs: &[&RunReport]) -> String {
         .collect()
 }
 
-pub(super) fn vif_table(runs: &[&RunReport], thresholds: &Thresholds) -> String {
+pub(super) fn vif_table(runs: &[&RunReport]) -> String {
     let names = union(
         runs.iter()
             .flat_map(|r| r.regressors.iter().map(|e| e.regressor.name.as_str())),
@@ -59,11 +57,7 @@ pub(super) fn vif_table(runs: &[&RunReport], thresholds: &Thresholds) -> String 
                     if !entry.in_design {
                         "<td class=\"num st-severe\">left out</td>".to_string()
                     } else if entry.regressor.kind.of_interest() {
-                        let status = if vif.is_none() {
-                            Status::Severe
-                        } else {
-                            vif_status(vif, thresholds)
-                        };
+                        let status = entry.status;
                         format!(
                             "<td class=\"num st-{}\">{} <span aria-hidden=\"true\">{}</span></td>",
                             status.label(),

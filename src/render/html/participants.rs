@@ -28,7 +28,7 @@ pub(super) fn participants(report: &Report) -> String {
             .iter()
             .filter(|r| r.subject == summary.subject)
             .collect();
-        body.push_str(&participant_detail(report, summary, &runs));
+        body.push_str(&participant_detail(summary, &runs));
     }
     section("participants", "Participants", &body)
 }
@@ -72,7 +72,7 @@ fn summary_row(summary: &SubjectSummary) -> String {
 
 /// A participant's block: the VIF table and the model sets stay visible (they print);
 /// the long lists — flags, model differences, measured signals — fold away.
-fn participant_detail(report: &Report, summary: &SubjectSummary, runs: &[&RunReport]) -> String {
+fn participant_detail(summary: &SubjectSummary, runs: &[&RunReport]) -> String {
     let run_count = match runs.len() {
         1 => "1 run".to_string(),
         n => format!("{n} runs"),
@@ -89,7 +89,7 @@ fn participant_detail(report: &Report, summary: &SubjectSummary, runs: &[&RunRep
         badge(summary.status),
         number(summary.worst_vif),
     );
-    html.push_str(&vif_table(runs, &report.settings.thresholds));
+    html.push_str(&vif_table(runs));
     html.push_str("</div>\n<div>\n");
     html.push_str(&model_sets(runs));
     html.push_str(&entangled(runs));

@@ -20,7 +20,7 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
     if !regressors.is_empty() && !runs.is_empty() {
         let items: Vec<String> = regressors
             .iter()
-            .map(|named| vif_summary(runs, named))
+            .map(|named| vif_summary(report, named))
             .collect();
         sentences.push(format!(
             "Over runs, {what} VIFs had median (range): {}.",
@@ -75,23 +75,12 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
 }
 
 /// "label median (min–max)", with the runs in which the VIF was undefined.
-fn vif_summary(runs: &[RunReport], named: &Named) -> String {
-    let mut values: Vec<f64> = Vec::new();
-    let mut undefined = 0usize;
-    for run in runs {
-        let Some(index) = run
-            .regressors
-            .iter()
-            .position(|e| e.regressor.name == named.name)
-        else {
-            continue;
-        };
-        match run.vif.get(index).copied().flatten() {
-            Some(v) if v.is_finite() => values.push(v),
-            _ => undefined += 1,
-        }
-    }
-    values.sort_by(f64::total_cmp);
+fn vif_summary(report: &Report, named: &Named) -> String {
+    let vifs = report
+        .regressor_vifs
+        .iter()
+        .find(|v| v.regressor == named.name);
+    let undefined = vifs.map_or(0, |v| v.undefined);
     let undefined_note = |all: bool| {
         if all {
             format!("undefined in all {}", count(undefined, "run", "runs"))
@@ -99,12 +88,8 @@ fn vif_summary(runs: &[RunReport], named: &Named) -> String {
             format!("undefined in {}", count(undefined, "run", "runs"))
         }
     };
-    match (
-        crate::quantile::median(&values),
-        values.first(),
-        values.last(),
-    ) {
-        (Some(mid), Some(&low), Some(&high)) => {
+    match vifs.map(|v| (v.median, v.min, v.max)) {
+        Some((Some(mid), Some(low), Some(high))) => {
             let note = if undefined > 0 {
                 format!("; {}", undefined_note(false))
             } else {

@@ -7,8 +7,9 @@ use plotters::style::text_anchor::{HPos, VPos};
 use super::legend::{Key, draw_legend};
 use super::marks::{Mark, draw_mark};
 use super::palette::{EMBER, INK, MIST, STONE};
-use super::{anchored, draw_svg, failed, label_width, participants, text};
+use super::{anchored, draw_svg, failed, label_width, text};
 use crate::report::Report;
+use crate::screen::vif_status;
 use crate::study::Thresholds;
 
 /// One participant's worst VIF for one regressor over their runs.
@@ -40,75 +41,43 @@ pub struct VifStrip {
     pub rows: Vec<StripRow>,
 }
 
-/// Onset and modulator regressors in the order they first appear in the runs.
-fn regressors_of_interest(report: &Report) -> Vec<String> {
-    let mut names: Vec<String> = Vec::new();
-    for run in &report.runs {
-        for entry in &run.regressors {
-            let regressor = &entry.regressor;
-            if regressor.kind.of_interest() && !names.contains(&regressor.name) {
-                names.push(regressor.name.clone());
-            }
-        }
-    }
-    names
-}
-
 /// A participant with an undefined VIF in some run gets no dot for that regressor (a
 /// dot for the defined runs would understate the problem); they are listed instead.
 pub fn vif_strip_data(report: &Report) -> VifStrip {
-    let subjects = participants(report);
     let mut strip = VifStrip::default();
-    for name in regressors_of_interest(report) {
-        let mut dots = Vec::new();
-        let mut undefined = Vec::new();
-        for subject in &subjects {
-            let mut worst: Option<f64> = None;
-            let mut undefined_runs = Vec::new();
-            let mut runs_with_it = 0;
-            for run in report.runs.iter().filter(|r| &r.subject == subject) {
-                let Some(index) = run.regressors.iter().position(|e| e.regressor.name == name)
-                else {
-                    continue;
-                };
-                runs_with_it += 1;
-                match run.vif.get(index).copied().flatten() {
-                    Some(v) if v.is_finite() && v > 0.0 => {
-                        worst = Some(worst.map_or(v, |w| w.max(v)));
-                    }
-                    _ => undefined_runs.push(run.run.clone()),
-                }
-            }
-            if !undefined_runs.is_empty() {
-                undefined.push(Undefined {
-                    subject: subject.clone(),
-                    every_run: undefined_runs.len() == runs_with_it,
-                    runs: undefined_runs,
-                });
-            } else if let Some(vif) = worst {
-                dots.push(Dot {
-                    subject: subject.clone(),
-                    vif,
-                });
-            }
+    for cell in &report.participant_vifs {
+        if strip
+            .rows
+            .last()
+            .is_none_or(|row| row.regressor != cell.regressor)
+        {
+            strip.rows.push(StripRow {
+                regressor: cell.regressor.clone(),
+                dots: Vec::new(),
+                undefined: Vec::new(),
+            });
         }
-        strip.rows.push(StripRow {
-            regressor: name,
-            dots,
-            undefined,
-        });
+        let Some(row) = strip.rows.last_mut() else {
+            continue;
+        };
+        if !cell.undefined_runs.is_empty() {
+            row.undefined.push(Undefined {
+                subject: cell.subject.clone(),
+                every_run: cell.undefined_runs.len() == cell.runs,
+                runs: cell.undefined_runs.clone(),
+            });
+        } else if let Some(vif) = cell.worst {
+            row.dots.push(Dot {
+                subject: cell.subject.clone(),
+                vif,
+            });
+        }
     }
     strip
 }
 
 fn vif_mark(vif: f64, thresholds: &Thresholds) -> Mark {
-    if vif >= thresholds.vif_severe {
-        Mark::Severe
-    } else if vif >= thresholds.vif_caution {
-        Mark::Caution
-    } else {
-        Mark::Ok
-    }
+    Mark::of(vif_status(Some(vif), thresholds))
 }
 
 /// Axis tick text for a log-scaled VIF axis.

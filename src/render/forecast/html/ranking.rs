@@ -3,7 +3,6 @@
 
 use std::fmt::Write as _;
 
-use super::variant::task_summary;
 use super::{esc, score, share, variant_id};
 use crate::forecast::report::ForecastReport;
 use crate::forecast::spec::RankBy;
@@ -88,7 +87,7 @@ fn table(report: &ForecastReport) -> String {
             cell(v.participants.ok),
             cell(v.participants.caution),
             cell(v.participants.severe),
-            task_summary(v),
+            esc(&v.task.summary),
         );
     }
     html.push_str("</tbody>\n</table>\n");

@@ -5,30 +5,8 @@ use std::fmt::Write as _;
 
 use super::{esc, ratio_cell, share, share_cell, spread_cells, variant_id};
 use crate::forecast::report::{ForecastReport, TaskInfo, VariantForecast};
-use crate::forecast::spec::Interval;
 use crate::render::html::{glyph, plain, section};
 use crate::screen::{Status, vif_status};
-
-fn interval(i: Interval) -> String {
-    if i.low == i.high {
-        format!("{} s", plain(i.low))
-    } else {
-        format!("{}–{} s (uniform)", plain(i.low), plain(i.high))
-    }
-}
-
-/// The task in one line, for the ranking table.
-pub(super) fn task_summary(v: &VariantForecast) -> String {
-    let t = &v.task;
-    format!(
-        "{} runs × {} trials; cue→outcome {}; outcome→cue {}; {}",
-        t.runs,
-        t.trials,
-        interval(t.cue_to_outcome),
-        interval(t.outcome_to_cue),
-        esc(&t.rewards)
-    )
-}
 
 /// The task's settings as (label, value) pairs, values already escaped.
 fn task_rows(t: &TaskInfo) -> Vec<(&'static str, String)> {
@@ -39,8 +17,8 @@ fn task_rows(t: &TaskInfo) -> Vec<(&'static str, String)> {
         ("TR", format!("{} s", plain(t.tr))),
         ("run length", esc(&t.run_length)),
         ("first cue", format!("{} s", plain(t.first_cue))),
-        ("cue → outcome", interval(t.cue_to_outcome)),
-        ("outcome → next cue", interval(t.outcome_to_cue)),
+        ("cue → outcome", t.cue_to_outcome.describe()),
+        ("outcome → next cue", t.outcome_to_cue.describe()),
         ("cue duration", format!("{} s", plain(t.cue_duration))),
         (
             "outcome duration",
