@@ -53,6 +53,7 @@ pub mod flags;
 pub mod forecast;
 pub mod merge;
 pub mod output;
+pub mod precision;
 pub mod quantile;
 pub mod render;
 pub mod report;

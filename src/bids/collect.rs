@@ -17,7 +17,7 @@ use crate::study::{BidsSource, LabelColumns, MAX_PLAUSIBLE_TR, ScanCounts, Study
 use crate::trials::{RunTrials, ScanTable, Table, collect_runs};
 
 /// Largest difference between two TRs that still counts as agreement (seconds).
-const TR_TOLERANCE: f64 = 1e-6;
+const TR_TOLERANCE: f64 = crate::precision::SAME_TR_SECONDS;
 
 /// What one run's files say about its acquisition.
 struct Acquired {

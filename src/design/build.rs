@@ -308,7 +308,11 @@ fn modulator_heights(values: &[Option<f64>], kept: &[bool], centre: bool) -> Vec
         .zip(kept)
         .map(|(v, &k)| match (v, k) {
             // Differences at rounding level of the values count as no variation at all.
-            (Some(v), true) if spread > 1e-12 * scale.max(f64::MIN_POSITIVE) => v - mean,
+            (Some(v), true)
+                if spread > crate::precision::NO_VARIATION * scale.max(f64::MIN_POSITIVE) =>
+            {
+                v - mean
+            }
             _ => 0.0,
         })
         .collect()

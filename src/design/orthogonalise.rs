@@ -14,7 +14,7 @@ use crate::flags::{Flag, FlagCode, Severity};
 
 /// A remainder shorter than this fraction of the column means the modulator lay
 /// entirely in the span of the modulators before it.
-const ABSORBED: f64 = 1e-8;
+const ABSORBED: f64 = crate::precision::ABSORBED;
 
 pub fn serial(design: &Design) -> Design {
     let mut result = design.clone();

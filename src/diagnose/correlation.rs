@@ -89,7 +89,7 @@ fn pearson(pairs: &[(f64, f64)]) -> Option<f64> {
         .iter()
         .map(|(x, y)| x.abs().max(y.abs()))
         .fold(0.0, f64::max);
-    if denominator <= 1e-24 * scale * scale * n || denominator == 0.0 {
+    if denominator <= crate::precision::NO_COVARIANCE * scale * scale * n || denominator == 0.0 {
         return None;
     }
     Some((sxy / denominator).clamp(-1.0, 1.0))

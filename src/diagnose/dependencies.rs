@@ -2,7 +2,7 @@
 //!
 //! Columns are taken in design order and orthogonalised against the independent ones
 //! before them (modified Gram–Schmidt, done twice for stability). A unit-length column
-//! whose remainder is shorter than [`DEPENDENCY_TOLERANCE`] is a combination of earlier
+//! whose remainder is shorter than [`crate::precision::DEPENDENCY`] is a combination of earlier
 //! columns — its VIF would exceed 1/tolerance² = 1e12 — and is reported with the
 //! combination found by least squares, so users see e.g. `total ≈ 1.00·a + 1.00·b`.
 
@@ -11,13 +11,7 @@ use serde::{Deserialize, Serialize};
 
 use super::UnitColumns;
 use crate::flags::{Flag, FlagCode, Severity};
-
-/// Length below which the part of a unit-length column not explained by the columns
-/// before it counts as zero (stated in the README).
-pub const DEPENDENCY_TOLERANCE: f64 = 1e-6;
-
-/// Coefficients smaller than this fraction of the largest are not part of the combination.
-const NEGLIGIBLE_COEFFICIENT: f64 = 1e-6;
+use crate::precision;
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Dependency {
@@ -80,7 +74,7 @@ pub(crate) fn find(names: &[&str], unit: &UnitColumns) -> Vec<Dependency> {
             }
         }
         let length = remainder.norm();
-        if length < DEPENDENCY_TOLERANCE {
+        if length < precision::DEPENDENCY {
             dependent.push(a);
         } else {
             basis.push(remainder / length);
@@ -98,7 +92,7 @@ pub(crate) fn find(names: &[&str], unit: &UnitColumns) -> Vec<Dependency> {
         .into_iter()
         .filter_map(|a| {
             let target = unit.matrix.column(a).into_owned();
-            let unit_weights = solver.solve(&target, 1e-12).ok()?;
+            let unit_weights = solver.solve(&target, precision::SINGULAR_VALUE).ok()?;
             let largest = unit_weights.amax();
             let mut dependency = Dependency {
                 regressors: vec![names[unit.indices[a]].to_string()],
@@ -107,7 +101,7 @@ pub(crate) fn find(names: &[&str], unit: &UnitColumns) -> Vec<Dependency> {
                 weights: Vec::new(),
             };
             for (k, &b) in independent.iter().enumerate() {
-                if unit_weights[k].abs() <= NEGLIGIBLE_COEFFICIENT * largest {
+                if unit_weights[k].abs() <= precision::NEGLIGIBLE_COEFFICIENT * largest {
                     continue;
                 }
                 // Back to the filtered columns' own units: f_a = Σ w_k · (n_a / n_k) · f_k.
@@ -129,4 +123,41 @@ pub(crate) fn find(names: &[&str], unit: &UnitColumns) -> Vec<Dependency> {
             Some(dependency)
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use crate::diagnose::analyse_columns;
+    use crate::precision::DEPENDENCY;
+
+    /// Three centred, equally long columns: a, b and (a + b)/√2 plus `t` times a third
+    /// orthogonal one c, so that the last column's unit-length remainder is t/√(1+t²).
+    fn columns(t: f64) -> Vec<Vec<f64>> {
+        let a = [1.0, -1.0, 1.0, -1.0, 1.0, -1.0, 1.0, -1.0];
+        let b = [1.0, 1.0, -1.0, -1.0, 1.0, 1.0, -1.0, -1.0];
+        let c = [1.0, 1.0, 1.0, 1.0, -1.0, -1.0, -1.0, -1.0];
+        let third = (0..8)
+            .map(|i| (a[i] + b[i]) / 2f64.sqrt() + t * c[i])
+            .collect();
+        vec![a.to_vec(), b.to_vec(), third]
+    }
+
+    #[test]
+    fn the_dependency_tolerance_separates_exact_from_near_dependencies() {
+        let names = ["a", "b", "sum"];
+        // Remainder a tenth of the tolerance: an exact dependency, VIFs of its members null.
+        let exact = analyse_columns(&names, &columns(0.1 * DEPENDENCY), &[0, 1, 2]);
+        assert_eq!(exact.dependencies.len(), 1);
+        assert_eq!(exact.vif[2], None);
+        // Ten times the tolerance: a near-dependency with a finite (huge) VIF.
+        let near = analyse_columns(&names, &columns(10.0 * DEPENDENCY), &[0, 1, 2]);
+        assert!(near.dependencies.is_empty());
+        let vif = near.vif[2].expect("finite");
+        // VIF = 1/(1 − R²) = (1 + t²)/t² with t the remainder's coefficient.
+        let t = 10.0 * DEPENDENCY;
+        assert!(
+            (vif / ((1.0 + t * t) / (t * t)) - 1.0).abs() < 1e-6,
+            "VIF {vif}"
+        );
+    }
 }

@@ -16,7 +16,7 @@ mod vif;
 
 pub use conditioning::{Conditioning, belsley};
 pub use correlation::{TrialCorrelation, most_correlated, trial_correlations};
-pub use dependencies::{DEPENDENCY_TOLERANCE, Dependency};
+pub use dependencies::Dependency;
 pub use efficiency::Contrast;
 pub use overlap::ModelOverlap;
 pub use partition::{Component, GroupShare, RegressorPartition};
@@ -29,10 +29,6 @@ use crate::design::{Design, RegressorKind};
 use crate::flags::{Flag, FlagCode, Severity};
 use partition::Group;
 use triangle::Triangle;
-
-/// A column whose filtered norm is below this fraction of its sampled norm lies
-/// (numerically) inside the drift space and carries no information.
-pub const VANISHING_TOLERANCE: f64 = 1e-10;
 
 #[derive(Debug, Clone)]
 pub struct Diagnostics {
@@ -427,7 +423,7 @@ fn active_columns(design: &Design, flags: &mut Vec<Flag>) -> Vec<usize> {
             continue;
         }
         let norm = euclidean(filtered);
-        if norm <= VANISHING_TOLERANCE * euclidean(sampled) || norm == 0.0 {
+        if norm <= crate::precision::VANISHING * euclidean(sampled) || norm == 0.0 {
             let name = &design.regressors[index].name;
             flags.push(Flag::new(
                 Severity::Severe,

@@ -17,7 +17,7 @@ pub struct ModelOverlap {
 }
 
 /// Relative size below which a residual direction counts as empty.
-const EMPTY: f64 = 1e-10;
+const EMPTY: f64 = crate::precision::EMPTY_DIRECTION;
 
 /// Orthonormal basis (as columns) of the span of `matrix`'s columns.
 fn basis(matrix: &DMatrix<f64>) -> DMatrix<f64> {

@@ -18,7 +18,7 @@ pub trait SubsetFit {
 pub struct Triangle(DMatrix<f64>);
 
 /// Relative size of a diagonal of R below which predictors count as dependent.
-const DEPENDENT: f64 = 1e-12;
+const DEPENDENT: f64 = crate::precision::TRIANGLE_DEPENDENT;
 
 impl Triangle {
     pub fn of(columns: &DMatrix<f64>) -> Self {

@@ -2,13 +2,14 @@
 //! [`crate::forecast::report::ForecastReport`]) and formats it; none computes a number.
 
 pub mod forecast;
-pub(crate) mod format;
 pub mod html;
 pub mod json;
 pub mod methods;
+pub mod numbers;
 pub mod plots;
 pub mod table;
 pub mod tsv;
+pub mod words;
 
 use crate::forecast::report::ForecastReport;
 use crate::report::Report;

@@ -4,7 +4,7 @@
 use crate::flags::FlagCode;
 use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyle};
 
-use super::format::ratio;
+use super::numbers::{percent_tenths, ratio};
 use crate::report::Report;
 use crate::report::RunReport;
 
@@ -69,10 +69,6 @@ const COMPACT: TableStyle = TableStyle::new()
     .header_separator(LineStyle::none().fill('─').junction('─'))
     .bottom_border(LineStyle::none().fill('─').junction('─'));
 
-pub(crate) fn percent(share: f64) -> String {
-    format!("{:.1}%", 100.0 * share)
-}
-
 /// Per participant and modulator (means over runs): its own share, what it shares with
 /// the other models, and what it shares with the task's timing.
 fn subject_partition(report: &Report) -> String {
@@ -114,14 +110,14 @@ fn subject_partition(report: &Report) -> String {
                 ]
                 .contains(&s.part.as_str())
             })
-            .map(|s| format!("{} {}", s.part, percent(s.mean)))
+            .map(|s| format!("{} {}", s.part, percent_tenths(s.mean)))
             .collect();
         table.add_row(vec![
             share.subject.clone(),
             share.regressor.clone(),
-            of(UNIQUE).map_or("undefined".into(), |s| percent(s.mean)),
+            of(UNIQUE).map_or("undefined".into(), |s| percent_tenths(s.mean)),
             others.join(", "),
-            of(TASK).map_or(String::new(), |s| percent(s.mean)),
+            of(TASK).map_or(String::new(), |s| percent_tenths(s.mean)),
         ]);
     }
     format!("\nOwn and shared variance per participant (means over runs)\n{table}\n")
@@ -142,8 +138,12 @@ fn cohort_partition(report: &Report) -> String {
         table.add_row(vec![
             share.regressor.clone(),
             part,
-            percent(share.median),
-            format!("{}–{}", percent(share.min), percent(share.max)),
+            percent_tenths(share.median),
+            format!(
+                "{}–{}",
+                percent_tenths(share.min),
+                percent_tenths(share.max)
+            ),
             share.participants.to_string(),
         ]);
     }
@@ -301,13 +301,13 @@ fn entanglement(run: &RunReport) -> String {
                 } else {
                     ""
                 };
-                format!("with {}{own} {}", g.group, percent(g.share))
+                format!("with {}{own} {}", g.group, percent_tenths(g.share))
             })
             .collect();
         text.push_str(&format!(
             "  variance of {}: {} its own; shared {}\n",
             partition.regressor,
-            percent(unique),
+            percent_tenths(unique),
             shared.join(", ")
         ));
     }
@@ -323,10 +323,10 @@ fn entanglement(run: &RunReport) -> String {
             overlap.models[1],
             correlations.join(", "),
             overlap.models[1],
-            percent(overlap.explained[0]),
+            percent_tenths(overlap.explained[0]),
             overlap.models[0],
             overlap.models[0],
-            percent(overlap.explained[1]),
+            percent_tenths(overlap.explained[1]),
             overlap.models[1]
         ));
     }
@@ -342,17 +342,17 @@ fn entanglement(run: &RunReport) -> String {
                 };
                 format!(
                     "{label} {} [{} to {}]",
-                    percent(c.share),
-                    percent(c.low),
-                    percent(c.high)
+                    percent_tenths(c.share),
+                    percent_tenths(c.low),
+                    percent_tenths(c.high)
                 )
             })
             .collect();
         text.push_str(&format!(
             "  region {}: the design explains {} of its variance (task and nuisance alone {}); {}\n",
             region.region,
-            percent(region.r2),
-            percent(region.r2_base),
+            percent_tenths(region.r2),
+            percent_tenths(region.r2_base),
             parts.join(", ")
         ));
     }
@@ -382,7 +382,7 @@ fn subject_table(report: &Report) -> String {
             format!(
                 "{} {} with {} (run {})",
                 s.regressor,
-                percent(s.share),
+                percent_tenths(s.share),
                 s.model,
                 s.run
             )

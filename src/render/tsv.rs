@@ -3,7 +3,7 @@
 //! (FILE.tsv for the regressors, FILE.<table>.tsv for the others); on standard output
 //! they follow each other, each after a line `# <table>`.
 
-use super::format::exact;
+use crate::render::numbers::exact;
 use crate::report::Report;
 use crate::report::RunReport;
 

@@ -3,7 +3,6 @@
 use serde::{Deserialize, Serialize};
 
 use super::Text;
-use crate::diagnose::DEPENDENCY_TOLERANCE;
 use crate::settings::RunSettings;
 use crate::study::Thresholds;
 
@@ -56,7 +55,7 @@ impl Settings {
             }),
             thresholds: settings.thresholds,
             diagnostics_space: Text::Borrowed(DIAGNOSTICS_SPACE),
-            dependency_tolerance: DEPENDENCY_TOLERANCE,
+            dependency_tolerance: crate::precision::DEPENDENCY,
         }
     }
 }

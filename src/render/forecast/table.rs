@@ -7,8 +7,8 @@ use comfy_table::{CellAlignment, Table};
 use crate::forecast::report::{ForecastReport, VariantForecast};
 use crate::forecast::spec::RankBy;
 use crate::forecast::summary::Spread;
-use crate::render::format::ratio;
-use crate::render::table::{new_table, percent, wrap};
+use crate::render::numbers::{percent_tenths, ratio, score, share_tenths};
+use crate::render::table::{new_table, wrap};
 
 pub fn render(report: &ForecastReport) -> String {
     let info = &report.forecast;
@@ -20,7 +20,7 @@ pub fn render(report: &ForecastReport) -> String {
     let generating: Vec<String> = info
         .generating
         .iter()
-        .map(|g| format!("{} {}", g.learner, percent(g.weight)))
+        .map(|g| format!("{} {}", g.learner, percent_tenths(g.weight)))
         .collect();
     let mut text = format!(
         "{} — forecast: {} simulated participants per variant, seed {}\n\
@@ -67,14 +67,12 @@ fn ranking(report: &ForecastReport) -> String {
         let Some(v) = report.variants.iter().find(|v| v.name == entry.variant) else {
             continue;
         };
-        let share = |count: usize| percent(v.participants.share(count));
+        let share = |count: usize| percent_tenths(v.participants.share(count));
         table.add_row(vec![
             entry.rank.to_string(),
             v.name.clone(),
-            entry
-                .score
-                .map_or("undefined".into(), |s| format!("{s:.3}")),
-            percent(entry.chance_best),
+            score(entry.score),
+            percent_tenths(entry.chance_best),
             share(v.participants.ok),
             share(v.participants.caution),
             share(v.participants.severe),
@@ -89,10 +87,6 @@ fn spread_cells(spread: &Spread, show: fn(Option<f64>) -> String) -> [String; 2]
         show(spread.median),
         format!("{}–{}", show(spread.p10), show(spread.p90)),
     ]
-}
-
-fn share(value: Option<f64>) -> String {
-    value.map_or("undefined".into(), percent)
 }
 
 fn variant_block(v: &VariantForecast) -> String {
@@ -113,15 +107,15 @@ fn variant_block(v: &VariantForecast) -> String {
     for m in &v.regressors {
         let [vif_median, vif_range] = spread_cells(&m.vif, ratio);
         let [shared_median, shared_range] = match &m.shared_with_other_models {
-            Some(shared) => spread_cells(shared, share),
+            Some(shared) => spread_cells(shared, share_tenths),
             None => ["—".to_string(), "—".to_string()],
         };
         table.add_row(vec![
             m.regressor.clone(),
             vif_median,
             vif_range,
-            percent(m.p_caution_or_worse),
-            percent(m.p_severe),
+            percent_tenths(m.p_caution_or_worse),
+            percent_tenths(m.p_severe),
             shared_median,
             shared_range,
             m.vif.undefined.to_string(),
@@ -156,7 +150,7 @@ fn variant_block(v: &VariantForecast) -> String {
                 r.participants.to_string(),
                 r.correlation
                     .map_or("undefined".into(), |c| format!("{c:.3}")),
-                percent(r.at_bound),
+                percent_tenths(r.at_bound),
             ]);
         }
         align_numbers(&mut recovery, &[1, 2, 3]);

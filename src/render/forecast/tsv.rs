@@ -3,7 +3,7 @@
 
 use crate::forecast::report::ForecastReport;
 use crate::forecast::summary::Spread;
-use crate::render::format::exact;
+use crate::render::numbers::exact;
 use crate::render::tsv::{TsvTable, plain_table};
 
 pub fn render(report: &ForecastReport) -> Vec<TsvTable> {

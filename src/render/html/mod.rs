@@ -22,7 +22,7 @@ mod shared;
 
 use std::fmt::Write as _;
 
-use super::format::ratio;
+pub(crate) use super::numbers::{percent_whole as percent, plain, ratio_finite as number};
 use crate::flags::Severity;
 use crate::report::Report;
 use crate::screen::Status;
@@ -110,29 +110,6 @@ fn severity_badge(severity: Severity) -> String {
         "<span class=\"severity sv-{0}\">{0}</span>",
         severity.label()
     )
-}
-
-/// A share in [0, 1] as a percentage; non-finite values never reach the page.
-fn percent(value: f64) -> String {
-    if value.is_finite() {
-        format!("{:.0}%", value * 100.0)
-    } else {
-        "n/a".to_string()
-    }
-}
-
-/// A ratio for the page: `ratio` with a guard against non-finite values.
-pub(crate) fn number(value: Option<f64>) -> String {
-    ratio(value.filter(|v| v.is_finite()))
-}
-
-/// A setting as the user wrote it ("5", "2.5").
-pub(crate) fn plain(value: f64) -> String {
-    if value.is_finite() {
-        format!("{value}")
-    } else {
-        "n/a".to_string()
-    }
 }
 
 /// A figure, or a short note where it could not be drawn.

@@ -7,6 +7,7 @@ use super::participant_tables::{differences, entangled, flags, model_sets, signa
 use super::{badge, esc, number, participant_id, percent, section};
 use crate::cohort::SubjectSummary;
 use crate::flags::Severity;
+use crate::render::words::count;
 use crate::report::Report;
 use crate::report::RunReport;
 
@@ -73,10 +74,7 @@ fn summary_row(summary: &SubjectSummary) -> String {
 /// A participant's block: the VIF table and the model sets stay visible (they print);
 /// the long lists — flags, model differences, measured signals — fold away.
 fn participant_detail(summary: &SubjectSummary, runs: &[&RunReport]) -> String {
-    let run_count = match runs.len() {
-        1 => "1 run".to_string(),
-        n => format!("{n} runs"),
-    };
+    let run_count = count(runs.len(), "run", "runs");
     let flagged = if summary.runs_flagged.is_empty() {
         "no run flagged".to_string()
     } else {

@@ -1,8 +1,9 @@
 //! The first paragraph: how the design matrices were built.
 
-use super::format::{count, list};
 use super::layout::Layout;
 use crate::design::RegressorKind;
+use crate::render::numbers::prose_seconds;
+use crate::render::words::{and_list as list, count};
 use crate::report::Report;
 
 pub(super) fn design_paragraph(report: &Report, layout: &Layout) -> String {
@@ -156,8 +157,14 @@ fn event_shape(report: &Report, event: &str, label: &str) -> String {
         .reduce(f64::max);
     let shape = match (shortest, longest) {
         (_, Some(0.0)) => "as sticks".to_string(),
-        (Some(low), Some(high)) if low == high => format!("as boxcars of {} s", seconds(high)),
-        (Some(low), Some(high)) => format!("as boxcars of {}–{} s", seconds(low), seconds(high)),
+        (Some(low), Some(high)) if low == high => {
+            format!("as boxcars of {} s", prose_seconds(high))
+        }
+        (Some(low), Some(high)) => format!(
+            "as boxcars of {}–{} s",
+            prose_seconds(low),
+            prose_seconds(high)
+        ),
         _ => "without trials".to_string(),
     };
     let per_run = match span(&trials) {
@@ -166,12 +173,6 @@ fn event_shape(report: &Report, event: &str, label: &str) -> String {
         None => String::new(),
     };
     format!("{label} {shape} ({per_run})")
-}
-
-/// Seconds with at most two decimals, no trailing zeros.
-fn seconds(value: f64) -> String {
-    let text = format!("{value:.2}");
-    text.trim_end_matches('0').trim_end_matches('.').to_string()
 }
 
 fn span(values: &[usize]) -> Option<(usize, usize)> {

@@ -1,7 +1,8 @@
 //! The second paragraph: which diagnostics were computed, and the thresholds.
 
-use super::format::{list, tolerance};
 use super::layout::Layout;
+use crate::render::numbers::prose_power_of_ten as tolerance;
+use crate::render::words::and_list as list;
 use crate::report::Report;
 
 pub(super) fn diagnostics_paragraph(report: &Report, layout: &Layout) -> String {

@@ -11,7 +11,6 @@
 mod closing;
 mod design;
 mod diagnostics;
-mod format;
 mod layout;
 mod results;
 

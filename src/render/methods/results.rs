@@ -1,9 +1,12 @@
 //! The third paragraph: VIFs over runs, statuses, shares and dependencies.
 
-use super::format::{count, percent, percent_range, vif};
 use super::layout::{Layout, Named};
 use crate::cohort::partition::UNIQUE;
 use crate::flags::FlagCode;
+use crate::render::numbers::{
+    prose_percent as percent, prose_percent_range as percent_range, prose_vif as vif,
+};
+use crate::render::words::count;
 use crate::report::Report;
 use crate::report::RunReport;
 

@@ -6,6 +6,7 @@ use plotters::style::text_anchor::{HPos, VPos};
 
 use super::palette::{COLD, INK, MIST, STONE, WARM};
 use super::{Area, Drawn, anchored, draw_svg, failed, label_width, text};
+use crate::render::numbers::correlation_cell;
 use crate::report::Report;
 use crate::report::RunReport;
 
@@ -52,23 +53,6 @@ pub fn diverging(r: f64) -> RGBColor {
 /// Dark cells take white text.
 fn needs_light_text(fill: RGBColor) -> bool {
     0.299 * fill.0 as f64 + 0.587 * fill.1 as f64 + 0.114 * (fill.2 as f64) < 140.0
-}
-
-/// Two decimals, more near ±1 so that a near-copy (.998) is not shown as an exact one;
-/// leading zeros dropped and a true minus sign, to fit small cells.
-fn correlation_text(r: f64, diagonal: bool) -> String {
-    // No "−.00": a value that rounds to zero is shown unsigned.
-    let r = if r.abs() < 0.005 { 0.0 } else { r };
-    let text = if diagonal && (r - 1.0).abs() < 5e-3 {
-        "1".to_string()
-    } else if r.abs() >= 0.9995 {
-        format!("{r:.4}")
-    } else if r.abs() >= 0.995 {
-        format!("{r:.3}")
-    } else {
-        format!("{r:.2}")
-    };
-    text.replace("0.", ".").replace('-', "\u{2212}")
 }
 
 pub fn correlation_map(run: &RunReport) -> Result<String, String> {
@@ -139,7 +123,7 @@ pub fn correlation_map(run: &RunReport) -> Result<String, String> {
                         } else {
                             values_style(&INK)
                         };
-                        root.draw_text(&correlation_text(r, row == column), &style, centre)
+                        root.draw_text(&correlation_cell(r, row == column), &style, centre)
                             .map_err(failed)?
                     }
                     None => {
@@ -253,11 +237,11 @@ mod tests {
 
     #[test]
     fn near_copies_are_not_shown_as_exact() {
-        assert_eq!(correlation_text(1.0, true), "1");
-        assert_eq!(correlation_text(0.998, false), ".998");
-        assert_eq!(correlation_text(0.99981, false), ".9998");
-        assert_eq!(correlation_text(-0.35, false), "\u{2212}.35");
-        assert_eq!(correlation_text(-0.001, false), ".00");
+        assert_eq!(correlation_cell(1.0, true), "1");
+        assert_eq!(correlation_cell(0.998, false), ".998");
+        assert_eq!(correlation_cell(0.99981, false), ".9998");
+        assert_eq!(correlation_cell(-0.35, false), "\u{2212}.35");
+        assert_eq!(correlation_cell(-0.001, false), ".00");
     }
 
     #[test]

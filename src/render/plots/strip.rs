@@ -8,6 +8,8 @@ use super::legend::{Key, draw_legend};
 use super::marks::{Mark, draw_mark};
 use super::palette::{EMBER, INK, MIST, STONE};
 use super::{anchored, draw_svg, failed, label_width, text};
+use crate::render::numbers::axis_vif;
+use crate::render::words::count;
 use crate::report::Report;
 use crate::screen::vif_status;
 use crate::study::Thresholds;
@@ -78,19 +80,6 @@ pub fn vif_strip_data(report: &Report) -> VifStrip {
 
 fn vif_mark(vif: f64, thresholds: &Thresholds) -> Mark {
     Mark::of(vif_status(Some(vif), thresholds))
-}
-
-/// Axis tick text for a log-scaled VIF axis.
-pub(super) fn vif_tick(value: f64) -> String {
-    if !value.is_finite() {
-        String::new()
-    } else if value >= 1e5 {
-        format!("{value:.0e}")
-    } else if value >= 10.0 || (value - value.round()).abs() < 1e-9 {
-        format!("{value:.0}")
-    } else {
-        format!("{value:.1}")
-    }
 }
 
 /// Vertical layout of one strip row, in pixels from the top of the plotting area.
@@ -182,7 +171,7 @@ pub fn vif_strip(strip: &VifStrip, thresholds: &Thresholds) -> Result<String, St
             .disable_y_mesh()
             .y_labels(0)
             .x_labels(12)
-            .x_label_formatter(&|v| vif_tick(*v))
+            .x_label_formatter(&|v| axis_vif(*v))
             .x_desc("VIF (log scale): the participant's largest value over their runs")
             .light_line_style(MIST.mix(0.6))
             .bold_line_style(MIST)
@@ -214,10 +203,10 @@ pub fn vif_strip(strip: &VifStrip, thresholds: &Thresholds) -> Result<String, St
             .map_err(failed)?;
             if !row.undefined.is_empty() {
                 // Said inside the row, so that an empty row does not read as "no problem".
-                let note = match row.undefined.len() {
-                    1 => "VIF undefined for 1 participant (see below)".to_string(),
-                    n => format!("VIF undefined for {n} participants (see below)"),
-                };
+                let note = format!(
+                    "VIF undefined for {} (see below)",
+                    count(row.undefined.len(), "participant", "participants")
+                );
                 // Bottom right: the flagged labels stack from the top with the highest
                 // VIF (furthest right) first, so this corner is the one left free.
                 let (rx, ry) =
@@ -249,11 +238,11 @@ pub fn vif_strip(strip: &VifStrip, thresholds: &Thresholds) -> Result<String, St
 
         let caution = format!(
             "caution: {} ≤ VIF < {}",
-            vif_tick(thresholds.vif_caution),
-            vif_tick(thresholds.vif_severe)
+            axis_vif(thresholds.vif_caution),
+            axis_vif(thresholds.vif_severe)
         );
-        let severe = format!("severe: VIF ≥ {}", vif_tick(thresholds.vif_severe));
-        let ok = format!("below {}", vif_tick(thresholds.vif_caution));
+        let severe = format!("severe: VIF ≥ {}", axis_vif(thresholds.vif_severe));
+        let ok = format!("below {}", axis_vif(thresholds.vif_caution));
         draw_legend(
             &legend_area,
             &[
@@ -301,7 +290,7 @@ pub(super) fn threshold_lines(
                 .map_err(failed)?;
         }
         let (x, y) = chart.backend_coord(&(value, plot_height));
-        let note = format!("{label} {}", vif_tick(value));
+        let note = format!("{label} {}", axis_vif(value));
         let style = anchored(text(13.0), side, VPos::Bottom);
         root.draw_text(&note, &style, (x + shift, y - 4))
             .map_err(failed)?;
@@ -315,9 +304,9 @@ mod tests {
 
     #[test]
     fn ticks_are_plain_numbers() {
-        assert_eq!(vif_tick(5.0), "5");
-        assert_eq!(vif_tick(2.5), "2.5");
-        assert_eq!(vif_tick(1000.0), "1000");
-        assert_eq!(vif_tick(f64::NAN), "");
+        assert_eq!(axis_vif(5.0), "5");
+        assert_eq!(axis_vif(2.5), "2.5");
+        assert_eq!(axis_vif(1000.0), "1000");
+        assert_eq!(axis_vif(f64::NAN), "");
     }
 }

@@ -18,10 +18,11 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
 use super::palette::{EMBER, INK, STONE};
-use super::strip::{threshold_lines, vif_tick};
+use super::strip::threshold_lines;
 use super::{Area, Drawn, anchored, draw_svg, failed, label_width, text};
 use crate::forecast::report::ForecastReport;
 use crate::forecast::summary::Spread;
+use crate::render::numbers::axis_vif as vif_tick;
 use crate::study::Thresholds;
 use keys::{Entry, draw_legend, draw_shape, legend_layout, shape_colour};
 

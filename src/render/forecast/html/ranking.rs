@@ -3,10 +3,11 @@
 
 use std::fmt::Write as _;
 
-use super::{esc, score, share, variant_id};
+use super::{esc, variant_id};
 use crate::forecast::report::ForecastReport;
 use crate::forecast::spec::RankBy;
 use crate::render::html::{badge, figure, plain, section};
+use crate::render::numbers::{percent_tenths as share, score};
 use crate::render::plots::variants::{status_bars, status_rows, variant_vifs, variant_vifs_data};
 use crate::screen::Status;
 

@@ -3,9 +3,10 @@
 
 use std::fmt::Write as _;
 
-use super::{esc, share};
+use super::esc;
 use crate::forecast::report::{ForecastReport, LearnerInfo};
 use crate::render::html::{plain, section};
+use crate::render::numbers::percent_tenths as share;
 
 pub(super) fn setup(report: &ForecastReport) -> String {
     let info = &report.forecast;

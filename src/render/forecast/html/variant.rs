@@ -3,9 +3,12 @@
 
 use std::fmt::Write as _;
 
-use super::{esc, ratio_cell, share, share_cell, spread_cells, variant_id};
+use super::{esc, spread_cells, variant_id};
 use crate::forecast::report::{ForecastReport, TaskInfo, VariantForecast};
 use crate::render::html::{glyph, plain, section};
+use crate::render::numbers::{
+    percent_tenths as share, ratio_finite as ratio_cell, share_tenths as share_cell,
+};
 use crate::screen::{Status, vif_status};
 
 /// The task's settings as (label, value) pairs, values already escaped.
