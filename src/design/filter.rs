@@ -103,7 +103,8 @@ mod tests {
 
     #[test]
     fn basis_matches_the_published_test_vector() {
-        // N = 6, TR = 2, cutoff = 10 → K = 2 (shared/research/fmri-domain.md §3, [calc]).
+        // N = 6, TR = 2, cutoff = 10 → K = floor(2·6·2/10) = 2; the values are
+        // √(2/N)·cos(π·k·(2n+1)/(2N)), computed by hand.
         let basis = DriftBasis::new(6, 2.0, 10.0);
         assert_eq!(basis.len(), 3);
         let expected = [

@@ -98,7 +98,8 @@ mod tests {
     #[test]
     fn landmarks_of_the_canonical_response() {
         // Closed form with unit dispersion: t^5 e^-t / 5! − t^15 e^-t / (6 · 15!)
-        // (shared/research/fmri-domain.md §1.1, [calc]); peak near 5 s.
+        // (the double gamma of the README's "Numerical conventions", computed by hand);
+        // peak near 5 s.
         let t: f64 = 5.0;
         let closed =
             t.powi(5) * (-t).exp() / 120.0 - t.powi(15) * (-t).exp() / (6.0 * 1_307_674_368_000.0);

@@ -1,7 +1,7 @@
 //! Event regressors: sticks and boxcars on a microtime grid, convolved with the
 //! response and sampled at the scan times.
 //!
-//! Conventions (DESIGN.md): time zero is the start of the first volume; dt = TR/microtime;
+//! Conventions (README, "Numerical conventions"): time zero is the start of the first volume; dt = TR/microtime;
 //! an event with onset o and duration d covers bins round(o/dt) .. round((o+d)/dt) − 1
 //! (at least one bin); scan k is read at the bin nearest (k + reference)·TR; the grid
 //! starts 32 s before time zero. Rounding is half away from zero.

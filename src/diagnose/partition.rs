@@ -7,7 +7,7 @@ use nalgebra::DMatrix;
 use serde::{Deserialize, Serialize};
 
 use super::commonality;
-use super::triangle::{SubsetFit, Triangle};
+use super::triangle::Triangle;
 
 /// Group of the onset and derivative regressors: the task's timing.
 pub const TASK: &str = "task";
@@ -78,11 +78,7 @@ pub struct Group {
 
 /// Commonality components of column `target`'s R² on the union of `groups`, all subset
 /// R² taken from `fit` (the triangle of a QR). `None` if predictors are dependent.
-pub fn partition(
-    fit: &dyn SubsetFit,
-    target: usize,
-    groups: &[Group],
-) -> Option<(f64, Vec<Component>)> {
+pub fn partition(fit: &Triangle, target: usize, groups: &[Group]) -> Option<(f64, Vec<Component>)> {
     let union = |mask: u32| -> Vec<usize> {
         groups
             .iter()

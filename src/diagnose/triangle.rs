@@ -3,13 +3,6 @@
 
 use nalgebra::DMatrix;
 
-/// Where the R² of one column on a subset of the others comes from.
-pub trait SubsetFit {
-    /// R² of column `target` on the columns `predictors`; `None` when the predictors are
-    /// (numerically) dependent.
-    fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64>;
-}
-
 /// The R of a Householder QR of the columns, X = QR. Q has orthonormal columns, so any
 /// regression among X's columns is the same regression among R's columns, in as many
 /// dimensions as there are columns rather than scans; solving each one by QR again keeps
@@ -48,8 +41,10 @@ impl Triangle {
     }
 }
 
-impl SubsetFit for Triangle {
-    fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64> {
+impl Triangle {
+    /// R² of column `target` on the columns `predictors`; `None` when the predictors are
+    /// (numerically) dependent.
+    pub fn r_squared(&self, target: usize, predictors: &[usize]) -> Option<f64> {
         if predictors.is_empty() {
             return Some(0.0);
         }

@@ -1,5 +1,6 @@
 //! The report model: one structure that every output format reads, so that no format
-//! keeps its own list of fields. Its JSON form is the contract of DESIGN.md.
+//! keeps its own list of fields. Its JSON form is the contract the README's "Outputs"
+//! section documents.
 
 mod run;
 mod settings;

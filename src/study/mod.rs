@@ -1,5 +1,6 @@
 //! The study: what the researcher wrote in the study file, checked and resolved.
-//! Keys are those of DESIGN.md; `parse` turns the TOML text into a [`Study`].
+//! Keys are those of the README's "Study file" section; `parse` turns the TOML text into
+//! a [`Study`].
 
 mod parse;
 pub(crate) mod schema;

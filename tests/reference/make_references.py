@@ -555,7 +555,7 @@ def fixture_references(out: Path) -> list[str]:
     design = build_design(trials)
     ver = versions()
     write_json(folder / "expected.json", {
-        "source": "numpy build following DESIGN.md conventions",
+        "source": "numpy build following the README's numerical conventions",
         "computed_with": f"numpy {ver['numpy']}, scipy {ver['scipy']} (scipy.stats.gamma.pdf for the kernel)",
         "method": ("trials.csv read back; dense neural signal on the microtime grid "
                    "(bins grid_first_bin .. grid_end_bin - 1), bins [r(o/dt), max(r((o+d)/dt), r(o/dt)+1)) "
