@@ -28,7 +28,7 @@ pub fn score_of(values: &FocusValues, draw: &[usize]) -> Option<f64> {
     let focus = values.first().and_then(|p| p.first()).map_or(0, Vec::len);
     let mut worst = f64::NEG_INFINITY;
     for f in 0..focus {
-        let pooled: Vec<f64> = draw
+        let mut pooled: Vec<f64> = draw
             .iter()
             .flat_map(|&p| {
                 values[p]
@@ -39,8 +39,7 @@ pub fn score_of(values: &FocusValues, draw: &[usize]) -> Option<f64> {
         if pooled.is_empty() {
             continue;
         }
-        let pooled = quantile::sorted(pooled);
-        let median = quantile::type8(&pooled, 0.5)?;
+        let median = quantile::type8_unsorted(&mut pooled, 0.5)?;
         if !median.is_finite() {
             return None;
         }
