@@ -101,10 +101,16 @@ pub struct OutputArgs {
     /// Do not mean-centre parametric modulators (to see what centring does).
     #[arg(long)]
     pub no_centring: bool,
-    /// Also show each run with its modulators orthogonalised in the order written,
-    /// side by side with the design as written (statuses stay those of the latter).
+    /// Also show each run with its modulators orthogonalised, side by side with the
+    /// design as written (statuses stay those of the latter): `serial` orthogonalises
+    /// each filtered modulator against every one before it; `within-event` each
+    /// modulator's trial values against those before it on its event, before
+    /// convolution.
     #[arg(long, value_enum, value_name = "METHOD", default_value_t = Orthogonalise::None)]
     pub orthogonalise: Orthogonalise,
+    /// Check only this GLM (by its name in the study file; repeat for several).
+    #[arg(long = "glm", value_name = "NAME")]
+    pub glm: Vec<String>,
     /// Measured signals to partition into model-unique and shared variance: a path
     /// template with {subject} and {run}, e.g. "roi/sub-{subject}_run-{run}.tsv" (one row
     /// per scan, one column per region of interest).
@@ -122,6 +128,7 @@ pub struct OutputArgs {
 pub enum Orthogonalise {
     None,
     Serial,
+    WithinEvent,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

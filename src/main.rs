@@ -16,7 +16,7 @@ use tangle::forecast::{ForecastOptions, read_spec, run_forecast};
 use tangle::output::{deliver, print_to_stdout, write_trial_folders};
 use tangle::render::{check_report, forecast_report};
 use tangle::screen::Status;
-use tangle::settings::AnalysisOptions;
+use tangle::settings::{AnalysisOptions, Orthogonalisation};
 use tangle::signal::BootstrapSettings;
 
 /// A whole-cohort check makes millions of small allocations across threads (a run's
@@ -183,7 +183,12 @@ fn options(output: &OutputArgs) -> CheckOptions {
     CheckOptions {
         analysis: AnalysisOptions {
             centre: !output.no_centring,
-            orthogonalise: output.orthogonalise == Orthogonalise::Serial,
+            orthogonalise: match output.orthogonalise {
+                Orthogonalise::None => Orthogonalisation::None,
+                Orthogonalise::Serial => Orthogonalisation::Serial,
+                Orthogonalise::WithinEvent => Orthogonalisation::WithinEvent,
+            },
+            glms: (!output.glm.is_empty()).then(|| output.glm.clone()),
             bootstrap: BootstrapSettings {
                 resamples: output.resamples,
                 seed: output.seed,

@@ -12,12 +12,12 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
-use crate::assess::assess_run;
+use crate::assess::{AssessedRun, assess_run};
 use crate::cohort::{RunDigest, Summaries, summarise};
 use crate::error::{Error, Problems, Result};
 use crate::files::{InputFiles, read_text};
-use crate::render::json::{JsonStream, render_run};
-use crate::report::{Report, ReportHead, RunReport, Settings, StudyInfo, ToolInfo};
+use crate::render::json::{JsonStream, render_item};
+use crate::report::{Report, ReportHead, RunEntries, Settings, StudyInfo, ToolInfo};
 use crate::settings::{AnalysisOptions, RunSettings};
 use crate::study::{Study, TrialSource, parse_study};
 use crate::trials::{ROWS_PER_CHUNK, RunTrials, ScanTable};
@@ -43,12 +43,14 @@ pub fn check_file(files: &dyn InputFiles, path: &Path, options: CheckOptions) ->
 
 pub fn check_study(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> Result<Report> {
     let prepared = prepare(files, study, options)?;
-    let mut reports = Vec::new();
+    let mut entries = RunEntries::default();
     let summaries = prepared.run_all(files, &mut |run| {
-        reports.push(run);
+        entries.glms.extend(run.glms);
+        entries.separations.extend(run.separations);
+        entries.shares.extend(run.shares);
         Ok(())
     })?;
-    Ok(Report::new(prepared.head(), reports, summaries))
+    Ok(Report::new(prepared.head(), entries, summaries))
 }
 
 /// The study's runs, and the TR (seconds) every run shares: the study file's, or, in a
@@ -91,7 +93,7 @@ pub fn prepare(files: &dyn InputFiles, study: &Study, options: CheckOptions) -> 
         None => runs,
     };
     Ok(Prepared {
-        settings: RunSettings::of_study(study, tr, options.analysis),
+        settings: RunSettings::of_study(study, tr, options.analysis)?,
         study: study.clone(),
         runs,
         signal: options.signal,
@@ -114,13 +116,13 @@ impl Prepared {
         }
     }
 
-    /// Checks every run (in parallel, a batch at a time) and hands each run's report to
+    /// Checks every run (in parallel, a batch at a time) and hands each assessed run to
     /// `each` in table order; returns the cohort views. Problems of all runs are
     /// collected and returned together at the end.
     pub fn run_all(
         &self,
         files: &dyn InputFiles,
-        each: &mut dyn FnMut(RunReport) -> Result<()>,
+        each: &mut dyn FnMut(AssessedRun) -> Result<()>,
     ) -> Result<Summaries> {
         self.run_all_rendered(files, &|report| report, each)
     }
@@ -132,7 +134,7 @@ impl Prepared {
     pub fn run_all_rendered<T: Send>(
         &self,
         files: &dyn InputFiles,
-        render: &(dyn Fn(RunReport) -> T + Sync),
+        render: &(dyn Fn(AssessedRun) -> T + Sync),
         each: &mut dyn FnMut(T) -> Result<()>,
     ) -> Result<Summaries> {
         type Batch<T> = Vec<Result<(RunDigest, T)>>;
@@ -145,8 +147,8 @@ impl Prepared {
                     let results: Batch<T> = batch
                         .par_iter()
                         .map(|run| {
-                            let report = self.check_run(files, run)?;
-                            Ok((report.digest(), render(report)))
+                            let assessed = self.check_run(files, run)?;
+                            Ok((assessed.digest(&run.subject, &run.run), render(assessed)))
                         })
                         .collect();
                     if send.send(results).is_err() {
@@ -171,7 +173,7 @@ impl Prepared {
     }
 
     /// Reads the run's own tables and assesses it.
-    fn check_run(&self, files: &dyn InputFiles, run: &RunTrials) -> Result<RunReport> {
+    fn check_run(&self, files: &dyn InputFiles, run: &RunTrials) -> Result<AssessedRun> {
         let nuisance = inputs::nuisance(files, &self.study, run)?;
         let signal = inputs::signal(files, self.signal.as_deref(), run)?;
         assess_run(&self.settings, run, nuisance.as_ref(), signal.as_ref())
@@ -192,11 +194,52 @@ pub fn stream_json(
         source,
     };
     let mut stream = JsonStream::begin(out, &prepared.head()).map_err(output_error)?;
-    let summaries = prepared.run_all_rendered(files, &|run| render_run(&run), &mut |rendered| {
-        stream
-            .rendered_run(&rendered.map_err(output_error)?)
-            .map_err(output_error)
+    // The GLM entries are written as they come; the separations and model shares, a
+    // few numbers per run, follow the runs (in run order).
+    let mut separations: Vec<Vec<u8>> = Vec::new();
+    let mut shares: Vec<Vec<u8>> = Vec::new();
+    let summaries = prepared.run_all_rendered(files, &render_entries, &mut |rendered| {
+        let rendered = rendered.map_err(output_error)?;
+        for run in &rendered.glms {
+            stream.item(run).map_err(output_error)?;
+        }
+        separations.extend(rendered.separations);
+        shares.extend(rendered.shares);
+        Ok(())
     })?;
+    for (key, items) in [("separations", &separations), ("model_shares", &shares)] {
+        stream.next_list(key).map_err(output_error)?;
+        for item in items {
+            stream.item(item).map_err(output_error)?;
+        }
+    }
     stream.finish(&summaries).map_err(output_error)?;
     Ok(summaries)
+}
+
+/// A run's entries, each rendered as it sits in its list of the report.
+struct RenderedEntries {
+    glms: Vec<Vec<u8>>,
+    separations: Vec<Vec<u8>>,
+    shares: Vec<Vec<u8>>,
+}
+
+fn render_entries(run: AssessedRun) -> std::io::Result<RenderedEntries> {
+    Ok(RenderedEntries {
+        glms: run
+            .glms
+            .iter()
+            .map(render_item)
+            .collect::<std::io::Result<_>>()?,
+        separations: run
+            .separations
+            .iter()
+            .map(render_item)
+            .collect::<std::io::Result<_>>()?,
+        shares: run
+            .shares
+            .iter()
+            .map(render_item)
+            .collect::<std::io::Result<_>>()?,
+    })
 }

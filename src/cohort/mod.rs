@@ -5,11 +5,13 @@
 
 mod digest;
 pub mod partition;
+mod separation;
 mod subjects;
 mod vifs;
 
-pub use digest::RunDigest;
+pub use digest::{GlmDigest, RunDigest, SeparationDigest};
 pub use partition::{CohortShare, ParticipantShare};
+pub use separation::{ParticipantSeparation, Range, SeparationSummary};
 pub use subjects::{SharedShare, SubjectSummary, summarise_subjects};
 pub use vifs::{ParticipantVifs, RegressorVifs};
 
@@ -90,11 +92,16 @@ pub struct Summaries {
     pub regressor_vifs: Vec<RegressorVifs>,
     /// Each regressor of interest's VIFs per participant.
     pub participant_vifs: Vec<ParticipantVifs>,
+    /// Each modulator's separation from each other model over the cohort.
+    pub separations: Vec<SeparationSummary>,
+    /// The same per participant (means over runs).
+    pub participant_separations: Vec<ParticipantSeparation>,
 }
 
 /// The cohort views of the runs `digests`, in report order.
 pub fn summarise(digests: &[RunDigest]) -> Summaries {
     let subjects = summarise_subjects(digests);
+    let (separations, participant_separations) = separation::summarise(digests);
     let by_run: Vec<(&str, &[crate::diagnose::RegressorPartition])> = digests
         .iter()
         .map(|r| (r.subject.as_str(), r.partition.as_slice()))
@@ -111,5 +118,7 @@ pub fn summarise(digests: &[RunDigest]) -> Summaries {
         subjects,
         regressor_vifs: vifs::over_runs(digests),
         participant_vifs: vifs::per_participant(digests),
+        separations,
+        participant_separations,
     }
 }

@@ -4,6 +4,8 @@
 
 use serde::{Deserialize, Serialize};
 
+#[cfg(test)]
+use super::GlmDigest;
 use super::RunDigest;
 use crate::screen::Status;
 
@@ -15,6 +17,8 @@ pub struct SubjectSummary {
     pub worst_regressor: Option<String>,
     /// Run holding the worst VIF.
     pub worst_run: Option<String>,
+    /// GLM holding the worst VIF.
+    pub worst_glm: Option<String>,
     /// Largest condition index of the filtered design over the participant's runs.
     pub worst_condition_index: Option<f64>,
     /// Largest share of a modulator's variance shared with another model, over runs.
@@ -48,6 +52,7 @@ pub fn summarise_subjects(runs: &[RunDigest]) -> Vec<SubjectSummary> {
                     worst_vif: None,
                     worst_regressor: None,
                     worst_run: None,
+                    worst_glm: None,
                     worst_condition_index: None,
                     largest_shared: None,
                     status: Status::Ok,
@@ -57,19 +62,22 @@ pub fn summarise_subjects(runs: &[RunDigest]) -> Vec<SubjectSummary> {
             }
         };
         let summary = &mut subjects[index];
-        for (name, vif) in run.vifs.iter().filter_map(|(n, v)| v.map(|v| (n, v))) {
-            if summary.worst_vif.is_none_or(|worst| vif > worst) {
-                summary.worst_vif = Some(vif);
-                summary.worst_regressor = Some(name.clone());
-                summary.worst_run = Some(run.run.clone());
+        for glm in &run.glms {
+            for (name, vif) in glm.vifs.iter().filter_map(|(n, v)| v.map(|v| (n, v))) {
+                if summary.worst_vif.is_none_or(|worst| vif > worst) {
+                    summary.worst_vif = Some(vif);
+                    summary.worst_regressor = Some(name.clone());
+                    summary.worst_run = Some(run.run.clone());
+                    summary.worst_glm = Some(glm.glm.clone());
+                }
             }
-        }
-        if let Some(index) = run.largest_condition_index {
-            if summary
-                .worst_condition_index
-                .is_none_or(|worst| index > worst)
-            {
-                summary.worst_condition_index = Some(index);
+            if let Some(index) = glm.largest_condition_index {
+                if summary
+                    .worst_condition_index
+                    .is_none_or(|worst| index > worst)
+                {
+                    summary.worst_condition_index = Some(index);
+                }
             }
         }
         for (regressor, model, share) in &run.shared {
@@ -87,11 +95,12 @@ pub fn summarise_subjects(runs: &[RunDigest]) -> Vec<SubjectSummary> {
                 });
             }
         }
-        if run.status > summary.status {
-            summary.status = run.status;
+        let status = run.status();
+        if status > summary.status {
+            summary.status = status;
             summary.runs_flagged.clear();
         }
-        if run.status == summary.status && run.status != Status::Ok {
+        if status == summary.status && status != Status::Ok {
             summary.runs_flagged.push(run.run.clone());
         }
     }
@@ -110,14 +119,18 @@ mod tests {
         RunDigest {
             subject: subject.into(),
             run: run.into(),
-            status,
-            vifs: vifs
-                .into_iter()
-                .map(|(n, v)| (n.to_string(), Some(v)))
-                .collect(),
-            largest_condition_index: largest,
+            glms: vec![GlmDigest {
+                glm: "joint".into(),
+                status,
+                vifs: vifs
+                    .into_iter()
+                    .map(|(n, v)| (n.to_string(), Some(v)))
+                    .collect(),
+                largest_condition_index: largest,
+            }],
             shared: vec![("a".into(), "m".into(), 0.5)],
             partition: Vec::new(),
+            separations: Vec::new(),
         }
     }
 
@@ -134,6 +147,7 @@ mod tests {
         assert_eq!(summary[0].worst_vif, Some(12.0));
         assert_eq!(summary[0].worst_regressor.as_deref(), Some("a"));
         assert_eq!(summary[0].worst_run.as_deref(), Some("2"));
+        assert_eq!(summary[0].worst_glm.as_deref(), Some("joint"));
         assert_eq!(summary[0].status, Status::Severe);
         assert_eq!(summary[0].runs_flagged, ["2", "3"]);
         assert_eq!(summary[0].worst_condition_index, Some(12.0));

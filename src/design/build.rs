@@ -2,14 +2,15 @@
 
 use std::path::PathBuf;
 
-use super::filter::DriftBases;
+use super::filter::{DriftBases, whiten};
 use super::hrf::{Kernel, sampled};
+use super::orthogonalise::within_events;
 use super::regressors::{Grid, event_regressor};
-use super::{Design, EventSummary, Regressor, RegressorKind, TrialValues};
+use super::trials::{Pending, pending_regressors, timing_flags};
+use super::{Design, EventSummary, Regressor, RegressorKind};
 use crate::error::{Error, Location, Problem};
-use crate::flags::{Flag, FlagCode, Severity};
-use crate::study::ModelSpec;
-use crate::trials::{EventTrials, NuisanceTable, RunTrials};
+use crate::study::{GlmSpec, ModelSpec, NoiseModel};
+use crate::trials::{NuisanceTable, RunTrials};
 
 /// How every run's design is built: the study's choices and the user's, the same for
 /// every run.
@@ -28,6 +29,9 @@ pub struct DesignSpec {
     /// Mean-centre parametric modulators within run and event (the default).
     pub centre: bool,
     pub models: Vec<ModelSpec>,
+    /// The noise model: every column is whitened under AR(1) before the drift basis
+    /// (whitened too) is projected out.
+    pub noise: NoiseModel,
     /// Where the runs come from (the trial table or the BIDS dataset), named in
     /// messages about a run.
     pub source: PathBuf,
@@ -56,18 +60,41 @@ impl DesignSettings {
     }
 }
 
-/// One regressor before sampling: which trials, with which heights.
-struct Pending {
-    regressor: Regressor,
-    event: usize,
-    heights: Vec<f64>,
-    included: bool,
-}
-
+/// The design of `run` with every model's modulators: the design every GLM's columns
+/// are taken from ([`Design::for_glm`]), and the one the models' separation is measured in.
 pub fn build_design(
     settings: &DesignSettings,
     run: &RunTrials,
     nuisance: Option<&NuisanceTable>,
+) -> Result<Design, Error> {
+    build(settings, run, nuisance, &settings.spec.models, false)
+}
+
+/// The design of `glm` with each modulator orthogonalised, at trial level and before
+/// convolution, against the modulators listed before it on the same event (see
+/// [`super::orthogonalise::within_events`]).
+pub fn build_orthogonalised_within_events(
+    settings: &DesignSettings,
+    run: &RunTrials,
+    nuisance: Option<&NuisanceTable>,
+    glm: &GlmSpec,
+) -> Result<Design, Error> {
+    let models: Vec<ModelSpec> = settings
+        .spec
+        .models
+        .iter()
+        .filter(|m| glm.holds(&m.name))
+        .cloned()
+        .collect();
+    build(settings, run, nuisance, &models, true)
+}
+
+fn build(
+    settings: &DesignSettings,
+    run: &RunTrials,
+    nuisance: Option<&NuisanceTable>,
+    models: &[ModelSpec],
+    orthogonalise_within_events: bool,
 ) -> Result<Design, Error> {
     let spec = &settings.spec;
     let grid = Grid::new(spec.tr, run.scans, spec.microtime, spec.reference);
@@ -83,121 +110,14 @@ pub fn build_design(
     for (event, kept) in run.events.iter().zip(&kept) {
         timing_flags(event, kept, run_end, &mut flags);
     }
-
-    let mut pending = Vec::new();
-    for (index, event) in run.events.iter().enumerate() {
-        let trials = kept[index].iter().filter(|&&k| k).count();
-        if trials == 0 {
-            flags.push(Flag::new(
-                Severity::Severe,
-                FlagCode::EventAbsent,
-                vec![event.name.clone()],
-                format!(
-                    "event \"{}\" has no trials in this run; its regressors are left out",
-                    event.name
-                ),
-            ));
-        }
-        pending.push(Pending {
-            regressor: Regressor {
-                name: event.name.clone(),
-                kind: RegressorKind::Onset,
-                event: Some(event.name.clone()),
-                model: None,
-                column: None,
-            },
-            event: index,
-            heights: kept[index]
-                .iter()
-                .map(|&k| if k { 1.0 } else { 0.0 })
-                .collect(),
-            included: trials > 0,
-        });
-    }
-    let mut trial_values = Vec::new();
-    for model in &spec.models {
-        for modulator in &model.modulators {
-            let Some((index, event)) = run
-                .events
-                .iter()
-                .enumerate()
-                .find(|(_, e)| e.name == modulator.event)
-            else {
-                continue;
-            };
-            let Some(values) = event
-                .modulators
-                .iter()
-                .find(|m| m.model == model.name && m.column == modulator.column)
-            else {
-                continue;
-            };
-            let name = modulator_name(model, &modulator.column, &modulator.event);
-            let heights = modulator_heights(&values.values, &kept[index], spec.centre);
-            let usable_values: Vec<Option<f64>> = values
-                .values
-                .iter()
-                .zip(&kept[index])
-                .map(|(v, &k)| if k { *v } else { None })
-                .collect();
-            modulator_flags(
-                &name,
-                event,
-                &usable_values,
-                &kept[index],
-                &heights,
-                &mut flags,
-            );
-            let included = pending[index].included && heights.iter().any(|h| *h != 0.0);
-            trial_values.push(TrialValues {
-                regressor: pending.len(),
-                event: event.name.clone(),
-                values: usable_values,
-            });
-            pending.push(Pending {
-                regressor: Regressor {
-                    name,
-                    kind: RegressorKind::Modulator,
-                    event: Some(event.name.clone()),
-                    model: Some(model.name.clone()),
-                    column: Some(modulator.column.clone()),
-                },
-                event: index,
-                heights,
-                included,
-            });
-        }
+    let (mut pending, trial_values) =
+        pending_regressors(models, spec.centre, run, &kept, &mut flags);
+    if orthogonalise_within_events {
+        flags.extend(within_events(&mut pending));
     }
 
-    let mut regressors = Vec::new();
-    let mut sampled_columns = Vec::new();
-    let mut included = Vec::new();
-    for (kernel, derivative) in [
-        (&settings.response, false),
-        (&settings.response_derivative, true),
-    ] {
-        if derivative && !spec.derivative {
-            continue;
-        }
-        for item in &pending {
-            let event = &run.events[item.event];
-            let column = event_regressor(
-                &grid,
-                kernel,
-                &event.onsets,
-                &event.durations,
-                &item.heights,
-            );
-            let mut regressor = item.regressor.clone();
-            if derivative {
-                regressor.name = format!("{}:deriv", regressor.name);
-                regressor.kind = RegressorKind::Derivative;
-            }
-            regressors.push(regressor);
-            sampled_columns.push(column);
-            included.push(item.included);
-        }
-    }
+    let (mut regressors, mut sampled_columns, mut included) =
+        sample(settings, run, &grid, &pending);
     if let Some(table) = nuisance {
         for (name, column) in table.names.iter().zip(&table.columns) {
             let taken = regressors.iter().any(|r: &Regressor| &r.name == name);
@@ -217,7 +137,8 @@ pub fn build_design(
         }
     }
 
-    let drift = settings.drift.get(run.scans, spec.tr, spec.high_pass);
+    let rho = spec.noise.coefficient();
+    let drift = settings.drift.get(run.scans, spec.tr, spec.high_pass, rho);
     let in_model = included.iter().filter(|&&i| i).count() + drift.len();
     if in_model > run.scans {
         return Err(Problem::new(
@@ -236,12 +157,68 @@ pub fn build_design(
     }
     let filtered = sampled_columns
         .iter()
-        .map(|c| drift.residualise(c))
+        .map(|c| match spec.noise {
+            NoiseModel::White => drift.residualise(c),
+            NoiseModel::Ar1(rho) => drift.residualise(&whiten(c, rho)),
+        })
         .collect();
-    let events = run
-        .events
+    Ok(Design {
+        events: event_summaries(run, &kept),
+        subject: run.subject.clone(),
+        run: run.run.clone(),
+        session: run.session.clone(),
+        scans: run.scans,
+        regressors,
+        sampled: sampled_columns,
+        filtered,
+        included,
+        drift,
+        noise: spec.noise,
+        trial_values,
+        flags,
+    })
+}
+
+/// Every trial-level regressor convolved and sampled at the scans, then (with
+/// `derivative`) every one's temporal derivative.
+fn sample(
+    settings: &DesignSettings,
+    run: &RunTrials,
+    grid: &Grid,
+    pending: &[Pending],
+) -> (Vec<Regressor>, Vec<Vec<f64>>, Vec<bool>) {
+    let mut regressors = Vec::new();
+    let mut sampled_columns = Vec::new();
+    let mut included = Vec::new();
+    for (kernel, derivative) in [
+        (&settings.response, false),
+        (&settings.response_derivative, true),
+    ] {
+        if derivative && !settings.spec.derivative {
+            continue;
+        }
+        for item in pending {
+            let event = &run.events[item.event];
+            let column =
+                event_regressor(grid, kernel, &event.onsets, &event.durations, &item.heights);
+            let mut regressor = item.regressor.clone();
+            if derivative {
+                regressor.name = format!("{}:deriv", regressor.name);
+                regressor.kind = RegressorKind::Derivative;
+            }
+            regressors.push(regressor);
+            sampled_columns.push(column);
+            included.push(item.included);
+        }
+    }
+    (regressors, sampled_columns, included)
+}
+
+/// Each event's trials inside the run and their shortest and longest durations.
+fn event_summaries(run: &RunTrials, kept: &[Vec<bool>]) -> Vec<EventSummary> {
+    run.events
         .iter()
-        .zip(&kept)
+        .zip(kept)
         .map(|(event, kept)| {
             let durations: Vec<f64> = event
                 .durations
@@ -257,152 +234,5 @@ pub fn build_design(
                 max_duration: durations.iter().copied().reduce(f64::max),
             }
         })
-        .collect();
-    Ok(Design {
-        events,
-        subject: run.subject.clone(),
-        run: run.run.clone(),
-        session: run.session.clone(),
-        scans: run.scans,
-        regressors,
-        sampled: sampled_columns,
-        filtered,
-        included,
-        drift,
-        trial_values,
-        flags,
-    })
-}
-
-fn modulator_name(model: &ModelSpec, column: &str, event: &str) -> String {
-    let same_column_twice = model
-        .modulators
-        .iter()
-        .filter(|m| m.column == column)
-        .count()
-        > 1;
-    if same_column_twice {
-        format!("{}:{column}@{event}", model.name)
-    } else {
-        format!("{}:{column}", model.name)
-    }
-}
-
-/// Stick heights: the value minus the mean over the run's kept trials that have one
-/// (when centring), 0 where the value is missing or the trial is left out.
-fn modulator_heights(values: &[Option<f64>], kept: &[bool], centre: bool) -> Vec<f64> {
-    let present: Vec<f64> = values
-        .iter()
-        .zip(kept)
-        .filter_map(|(v, &k)| if k { *v } else { None })
-        .collect();
-    let mean = if centre && !present.is_empty() {
-        present.iter().sum::<f64>() / present.len() as f64
-    } else {
-        0.0
-    };
-    let spread = present.iter().map(|v| (v - mean).abs()).fold(0.0, f64::max);
-    let scale = present.iter().map(|v| v.abs()).fold(0.0, f64::max);
-    values
-        .iter()
-        .zip(kept)
-        .map(|(v, &k)| match (v, k) {
-            // Differences at rounding level of the values count as no variation at all.
-            (Some(v), true)
-                if spread > crate::precision::NO_VARIATION * scale.max(f64::MIN_POSITIVE) =>
-            {
-                v - mean
-            }
-            _ => 0.0,
-        })
         .collect()
-}
-
-fn timing_flags(event: &EventTrials, kept: &[bool], run_end: f64, flags: &mut Vec<Flag>) {
-    let late: Vec<usize> = event
-        .lines
-        .iter()
-        .zip(kept)
-        .filter(|(_, k)| !**k)
-        .map(|(l, _)| *l)
-        .collect();
-    if !late.is_empty() {
-        flags.push(Flag::new(
-            Severity::Caution,
-            FlagCode::OnsetAfterRunEnd,
-            vec![event.name.clone()],
-            format!(
-                "{} trial(s) of \"{}\" start after the run ends at {run_end} s and are ignored (trial table line(s) {}); check the TR, the scan count and that onsets are in seconds",
-                late.len(),
-                event.name,
-                list_lines(&late)
-            ),
-        ));
-    }
-    let early = event.onsets.iter().filter(|&&o| o < 0.0).count();
-    if early > 0 {
-        flags.push(Flag::new(
-            Severity::Note,
-            FlagCode::NegativeOnset,
-            vec![event.name.clone()],
-            format!("{early} trial(s) of \"{}\" start before the first scan; the part of their response inside the run is modelled", event.name),
-        ));
-    }
-    if event.missing_durations > 0 {
-        flags.push(Flag::new(
-            Severity::Note,
-            FlagCode::MissingDuration,
-            vec![event.name.clone()],
-            format!(
-                "{} trial(s) of \"{}\" have no duration and are modelled as impulses (0 s)",
-                event.missing_durations, event.name
-            ),
-        ));
-    }
-}
-
-fn modulator_flags(
-    name: &str,
-    event: &EventTrials,
-    values: &[Option<f64>],
-    kept: &[bool],
-    heights: &[f64],
-    flags: &mut Vec<Flag>,
-) {
-    // Trials left out (after the run's end) are flagged as such, not as missing values.
-    let trials = kept.iter().filter(|&&k| k).count();
-    let present = values.iter().filter(|v| v.is_some()).count();
-    let missing = trials - present;
-    if missing > 0 && present > 0 {
-        flags.push(Flag::new(
-            Severity::Note,
-            FlagCode::MissingValues,
-            vec![name.to_string()],
-            format!("{missing} of {trials} trials of \"{}\" have no value for {name}; they contribute 0 to the modulator", event.name),
-        ));
-    }
-    if present > 0 && heights.iter().all(|h| *h == 0.0) {
-        flags.push(Flag::new(
-            Severity::Severe,
-            FlagCode::ConstantModulator,
-            vec![name.to_string()],
-            format!("{name} does not vary over the trials of this run; it is left out of the design and its VIF is undefined"),
-        ));
-    } else if present == 0 {
-        flags.push(Flag::new(
-            Severity::Severe,
-            FlagCode::ModulatorAbsent,
-            vec![name.to_string()],
-            format!("{name} has no values in this run; it is left out of the design"),
-        ));
-    }
-}
-
-fn list_lines(lines: &[usize]) -> String {
-    let shown: Vec<String> = lines.iter().take(5).map(|l| l.to_string()).collect();
-    if lines.len() > 5 {
-        format!("{}, …", shown.join(", "))
-    } else {
-        shown.join(", ")
-    }
 }

@@ -60,8 +60,59 @@ impl DriftBasis {
     }
 }
 
+/// AR(1) prewhitening, the Prais–Winsten transform (Prais & Winsten 1954) scaled by
+/// 1/√(1−ρ²): the first scan is kept, every later one becomes (xₖ − ρ·xₖ₋₁)/√(1−ρ²).
+/// Its matrix W has WᵀW = Σ⁻¹ for the AR(1) *correlation* matrix Σᵢⱼ = ρ^|i−j| (unit
+/// marginal variance), so Gram matrices of whitened columns are XᵀΣ⁻¹X, the GLS metric,
+/// and efficiencies compare across ρ. (Unscaled Prais–Winsten rows give (1 − ρ²)Σ⁻¹:
+/// the same VIFs, correlations and partitions.) ρ = 0 leaves every value as it is.
+pub fn whiten(x: &[f64], rho: f64) -> Vec<f64> {
+    if rho == 0.0 {
+        return x.to_vec();
+    }
+    let scale = 1.0 / (1.0 - rho * rho).sqrt();
+    let mut out = Vec::with_capacity(x.len());
+    for (k, &value) in x.iter().enumerate() {
+        out.push(if k == 0 {
+            value
+        } else {
+            (value - rho * x[k - 1]) * scale
+        });
+    }
+    out
+}
+
+impl DriftBasis {
+    /// The constant and cosines whitened (AR(1), coefficient `rho`), made orthonormal
+    /// again: what is projected out of whitened regressors. `rho = 0` is [`DriftBasis::new`].
+    pub fn whitened(scans: usize, tr: f64, cutoff: f64, rho: f64) -> Self {
+        let plain = DriftBasis::new(scans, tr, cutoff);
+        if rho == 0.0 {
+            return plain;
+        }
+        // Modified Gram–Schmidt, twice, on the whitened columns (they stay independent:
+        // W is invertible).
+        let mut columns: Vec<Vec<f64>> = Vec::with_capacity(plain.columns.len());
+        for column in &plain.columns {
+            let mut v = whiten(column, rho);
+            for _ in 0..2 {
+                for q in &columns {
+                    let weight: f64 = q.iter().zip(&v).map(|(a, b)| a * b).sum();
+                    for (x, qv) in v.iter_mut().zip(q) {
+                        *x -= weight * qv;
+                    }
+                }
+            }
+            let norm = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+            columns.push(v.iter().map(|x| x / norm).collect());
+        }
+        DriftBasis { columns }
+    }
+}
+
 /// The drift bases of a study's runs, made once per scan count: runs of a cohort share
-/// a handful of lengths, and the cosines are a tenth of a run's work.
+/// a handful of lengths, and the cosines are a tenth of a run's work. Under AR(1)
+/// noise the bases are whitened (every run of a study has the same coefficient).
 #[derive(Debug, Default)]
 pub struct DriftBases {
     by_scans: Mutex<HashMap<usize, Arc<DriftBasis>>>,
@@ -71,8 +122,9 @@ pub struct DriftBases {
 const MAX_KEPT_BASES: usize = 256;
 
 impl DriftBases {
-    /// The basis for `scans` volumes (TR and cutoff are the same for every run of a study).
-    pub fn get(&self, scans: usize, tr: f64, cutoff: f64) -> Arc<DriftBasis> {
+    /// The basis for `scans` volumes (TR, cutoff and AR(1) coefficient `rho` are the
+    /// same for every run of a study).
+    pub fn get(&self, scans: usize, tr: f64, cutoff: f64, rho: f64) -> Arc<DriftBasis> {
         // A poisoned lock only means another run panicked; the map itself is intact.
         let mut kept = self
             .by_scans
@@ -81,7 +133,7 @@ impl DriftBases {
         if let Some(basis) = kept.get(&scans) {
             return Arc::clone(basis);
         }
-        let basis = Arc::new(DriftBasis::new(scans, tr, cutoff));
+        let basis = Arc::new(DriftBasis::whitened(scans, tr, cutoff, rho));
         if kept.len() < MAX_KEPT_BASES {
             kept.insert(scans, Arc::clone(&basis));
         }
@@ -121,7 +173,7 @@ mod tests {
 
     #[test]
     fn column_counts_follow_the_cutoff_rule() {
-        // Table of fmri-domain.md §3: (scans, TR) → K at 128 s.
+        // K = floor(2·N·TR/128), by hand: (scans, TR) → K at 128 s.
         for (scans, tr, k) in [
             (240, 2.0, 7),
             (300, 2.0, 9),
@@ -132,6 +184,43 @@ mod tests {
             assert_eq!(cosine_count(scans, tr, 128.0), k);
         }
         assert_eq!(cosine_count(300, 2.0, 0.0), 0);
+    }
+
+    #[test]
+    fn whitening_gives_the_inverse_of_the_ar1_correlation_matrix() {
+        // WᵀW = Σ⁻¹ with Σᵢⱼ = ρ^|i−j|: for the AR(1) correlation matrix the inverse is
+        // tridiagonal, 1/(1−ρ²) × [1, −ρ; −ρ, 1+ρ², …; …, 1] (a textbook closed form).
+        let (n, rho) = (5, 0.6);
+        let columns: Vec<Vec<f64>> = (0..n)
+            .map(|j| {
+                whiten(
+                    &(0..n)
+                        .map(|i| f64::from(u8::from(i == j)))
+                        .collect::<Vec<_>>(),
+                    rho,
+                )
+            })
+            .collect();
+        let factor = 1.0 / (1.0 - rho * rho);
+        for i in 0..n {
+            for j in 0..n {
+                let got: f64 = columns[i].iter().zip(&columns[j]).map(|(a, b)| a * b).sum();
+                let want = match (i, j) {
+                    _ if i == j && (i == 0 || i == n - 1) => factor,
+                    _ if i == j => factor * (1.0 + rho * rho),
+                    _ if i.abs_diff(j) == 1 => -factor * rho,
+                    _ => 0.0,
+                };
+                assert_abs_diff_eq!(got, want, epsilon = 1e-12);
+            }
+        }
+        let basis = DriftBasis::whitened(40, 2.0, 40.0, 0.4);
+        for a in &basis.columns {
+            for b in &basis.columns {
+                let dot: f64 = a.iter().zip(b).map(|(x, y)| x * y).sum();
+                assert!(dot.abs() < 1e-12 || (dot - 1.0).abs() < 1e-12);
+            }
+        }
     }
 
     #[test]

@@ -7,8 +7,10 @@ pub mod filter;
 pub mod hrf;
 pub mod orthogonalise;
 pub mod regressors;
+mod select;
+mod trials;
 
-pub use build::{DesignSettings, DesignSpec, build_design};
+pub use build::{DesignSettings, DesignSpec, build_design, build_orthogonalised_within_events};
 
 use serde::{Deserialize, Serialize};
 
@@ -57,13 +59,16 @@ pub struct Design {
     pub regressors: Vec<Regressor>,
     /// Sampled columns before filtering, one per regressor.
     pub sampled: Vec<Vec<f64>>,
-    /// The same columns with the constant and drift basis projected out.
+    /// The same columns as the GLM estimates them: whitened under AR(1) noise, then
+    /// with the (whitened) constant and drift basis projected out.
     pub filtered: Vec<Vec<f64>>,
     /// `false` for regressors left out of the design (e.g. a constant modulator).
     pub included: Vec<bool>,
     /// The constant and cosine drift columns projected out of every regressor (and of
     /// any measured signal of the run).
     pub drift: std::sync::Arc<filter::DriftBasis>,
+    /// The noise model the filtered columns are whitened for.
+    pub noise: crate::study::NoiseModel,
     /// Trial-level (centred) modulator heights, for trial-level correlations.
     pub trial_values: Vec<TrialValues>,
     /// Each event's trials inside the run and their durations.
@@ -87,4 +92,17 @@ pub struct TrialValues {
     pub regressor: usize,
     pub event: String,
     pub values: Vec<Option<f64>>,
+}
+
+impl Design {
+    /// A series of the run's scans (e.g. a measured signal) in the space the filtered
+    /// columns live in: whitened under AR(1) noise, the drift basis projected out.
+    pub fn to_analysis_space(&self, series: &[f64]) -> Vec<f64> {
+        match self.noise {
+            crate::study::NoiseModel::White => self.drift.residualise(series),
+            crate::study::NoiseModel::Ar1(rho) => {
+                self.drift.residualise(&filter::whiten(series, rho))
+            }
+        }
+    }
 }

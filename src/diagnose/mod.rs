@@ -9,6 +9,7 @@ mod dependencies;
 mod efficiency;
 pub mod overlap;
 pub mod partition;
+mod separation;
 mod sets;
 mod spectrum;
 pub mod triangle;
@@ -20,6 +21,7 @@ pub use dependencies::Dependency;
 pub use efficiency::Contrast;
 pub use overlap::ModelOverlap;
 pub use partition::{Component, GroupShare, RegressorPartition};
+pub use separation::{ModelSeparation, SeparatedModulator};
 pub use sets::{ModelSet, scaled as scaled_gvif};
 pub use spectrum::Spectrum;
 
@@ -49,6 +51,8 @@ pub struct Diagnostics {
     pub partition: Vec<RegressorPartition>,
     /// Overlap of every pair of models after task and nuisance are partialled out.
     pub model_overlap: Vec<ModelOverlap>,
+    /// Every ordered pair of models: how far A's modulators can be told from B's.
+    pub separations: Vec<ModelSeparation>,
     /// Design indices of the independent columns every number above is computed on.
     pub analysed: Vec<usize>,
     pub flags: Vec<Flag>,
@@ -65,7 +69,7 @@ pub(crate) struct UnitColumns {
 }
 
 /// What every diagnostic is derived from.
-struct Core {
+pub(crate) struct Core {
     unit: UnitColumns,
     dependencies: Vec<Dependency>,
     spectrum: Spectrum,
@@ -98,15 +102,20 @@ pub fn diagnose(design: &Design) -> Diagnostics {
     let count = names.len();
     let core = core(&names, &design.filtered, &active);
     flags.extend(core.dependencies.iter().map(Dependency::flag));
+    let trial_correlation = trial_correlations(design);
+    let partition = design_partition(design, &core);
+    let model_overlap = model_overlaps(design, &core);
+    let separations = separation::separations(design, &core, &model_overlap, &trial_correlation);
     Diagnostics {
         correlation: correlation::filtered_correlation(count, &core.unit),
-        trial_correlation: trial_correlations(design),
+        trial_correlation,
         conditioning: conditioning::of_design(count, &core.unit, &core.spectrum),
         model_sets: model_sets(design, &core),
         efficiency: efficiency::own(count, &core.unit, &core.spectrum, &core.vif),
         contrasts: contrasts(design, &core),
-        partition: design_partition(design, &core),
-        model_overlap: model_overlaps(design, &core),
+        partition,
+        model_overlap,
+        separations,
         analysed: core
             .spectrum
             .kept

@@ -8,9 +8,8 @@ use super::fit::{Fit, fit_learner};
 use super::learners::{ChoiceOutcome, Learner, LearnerModel, TrialQuantities};
 use super::simulate::{Persona, RunPlan, Stream, behave, plan_run, stream};
 use super::spec::{ForecastSpec, TaskVariant};
-use crate::assess::assess_run;
+use crate::assess::{AssessedRun, assess_run};
 use crate::design::DesignSpec;
-use crate::report::RunReport;
 use crate::settings::{AnalysisOptions, RunSettings};
 use crate::study::{ModelSpec, ModulatorSpec};
 use crate::trials::{EventTrials, ModulatorValues, RunTrials};
@@ -104,9 +103,9 @@ pub fn simulate(
     }
 }
 
-/// The run settings a real analysis of this variant would use: the spec's design and
-/// thresholds, modulators mean-centred, one model per candidate learner with its
-/// quantities as modulators of the cue or the outcome.
+/// The run settings a real analysis of this variant would use: the spec's design,
+/// noise model, GLMs and thresholds, modulators mean-centred, one model per candidate
+/// learner with its quantities as modulators of the cue or the outcome.
 pub fn settings_for(spec: &ForecastSpec, variant: &TaskVariant) -> RunSettings {
     let design = DesignSpec {
         tr: variant.task.tr,
@@ -130,9 +129,15 @@ pub fn settings_for(spec: &ForecastSpec, variant: &TaskVariant) -> RunSettings {
                     .collect(),
             })
             .collect(),
+        noise: spec.noise,
         source: spec.path.clone(),
     };
-    RunSettings::new(design, spec.thresholds, AnalysisOptions::default())
+    RunSettings::new(
+        design,
+        spec.glms.clone(),
+        spec.thresholds,
+        AnalysisOptions::default(),
+    )
 }
 
 /// The participant's runs as the design builder takes them.
@@ -164,7 +169,7 @@ pub fn run_trials(
                             .iter()
                             .filter(move |q| q.at_cue() == at_cue)
                             .map(move |&q| ModulatorValues {
-                                model: learner.name.clone(),
+                                model: Some(learner.name.clone()),
                                 column: learner.column(q),
                                 values: trace.iter().map(|t| t.get(q)).collect(),
                             })
@@ -187,7 +192,7 @@ pub fn run_trials(
 }
 
 /// Checks every run of the participant with the study's full diagnostics.
-pub fn check_runs(settings: &RunSettings, runs: &[RunTrials]) -> crate::Result<Vec<RunReport>> {
+pub fn check_runs(settings: &RunSettings, runs: &[RunTrials]) -> crate::Result<Vec<AssessedRun>> {
     runs.iter()
         .map(|run| assess_run(settings, run, None, None))
         .collect()

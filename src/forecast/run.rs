@@ -11,7 +11,7 @@ use super::report::{FORECAST_CAUTIONS, ForecastInfo, ForecastReport, TaskInfo, V
 use super::simulate::draw_persona;
 use super::spec::{ForecastSpec, RankBy};
 use super::summary::{
-    Recovery, RunDigest, Tracked, model_set_forecast, pearson, regressor_forecast,
+    Recovery, RunDigest, Slots, Tracked, model_set_forecast, pearson, regressor_forecast,
 };
 use crate::cohort::StatusCounts;
 use crate::error::Result;
@@ -58,6 +58,7 @@ pub fn run_forecast(
         })
     }));
     let learner_names: Vec<String> = spec.learners.iter().map(|l| l.name.clone()).collect();
+    let slots = Slots::new(&spec.glms, tracked, learner_names);
     let mut variants = Vec::new();
     let mut kept = Vec::new();
     let mut focus_values = Vec::new();
@@ -68,11 +69,9 @@ pub fn run_forecast(
             .map(|persona| {
                 let participant = simulate(spec, variant, persona);
                 let runs = run_trials(spec, variant, &participant);
-                let reports = check_runs(&settings, &runs)?;
-                let digests: Vec<RunDigest> = reports
-                    .iter()
-                    .map(|r| RunDigest::of(r, &tracked, &learner_names))
-                    .collect();
+                let assessed = check_runs(&settings, &runs)?;
+                let digests: Vec<RunDigest> =
+                    assessed.iter().map(|r| RunDigest::of(r, &slots)).collect();
                 let status = digests
                     .iter()
                     .map(|d| d.status)
@@ -99,10 +98,10 @@ pub fn run_forecast(
             spec,
             &variant.name,
             &variant.task,
-            &tracked,
+            &slots,
             &outcomes,
         ));
-        focus_values.push(focus_values_of(spec, &tracked, &outcomes));
+        focus_values.push(focus_values_of(spec, &slots, &outcomes));
         kept.push(outcomes.into_iter().filter_map(|o| o.kept).collect());
     }
     let chance = chance_best(spec, &focus_values);
@@ -124,21 +123,16 @@ fn summarise_variant(
     spec: &ForecastSpec,
     name: &str,
     task: &super::spec::Task,
-    tracked: &[Tracked],
+    slots: &Slots,
     outcomes: &[Outcome],
 ) -> VariantForecast {
     let runs: Vec<&RunDigest> = outcomes.iter().flat_map(|o| &o.runs).collect();
     let participants = StatusCounts::of(outcomes.iter().map(|o| o.status));
-    let regressors = tracked
-        .iter()
-        .enumerate()
-        .map(|(i, key)| regressor_forecast(i, key, &runs, &spec.thresholds))
+    let regressors = (0..slots.regressors.len())
+        .map(|i| regressor_forecast(i, slots, &runs, &spec.thresholds))
         .collect();
-    let model_sets = spec
-        .learners
-        .iter()
-        .enumerate()
-        .map(|(i, l)| model_set_forecast(i, &l.name, &runs))
+    let model_sets = (0..slots.model_sets.len())
+        .map(|i| model_set_forecast(i, slots, &runs))
         .collect();
     let mut variant = VariantForecast {
         name: name.to_string(),
@@ -231,15 +225,17 @@ fn recovery(spec: &ForecastSpec, outcomes: &[Outcome]) -> Vec<Recovery> {
 }
 
 /// What the ranking's bootstrap needs: per participant and run, the focus regressors'
-/// VIFs (or shares with another model).
-fn focus_values_of(spec: &ForecastSpec, tracked: &[Tracked], outcomes: &[Outcome]) -> FocusValues {
-    let focus: Vec<usize> = tracked
-        .iter()
-        .enumerate()
-        .filter(|(_, t)| spec.focus.iter().any(|f| f == t.name()))
-        .filter(|(_, t)| spec.rank_by == RankBy::Vif || t.learner().is_some())
-        .map(|(i, _)| i)
-        .collect();
+/// VIFs in every GLM that holds them (or their shares with another model).
+fn focus_values_of(spec: &ForecastSpec, slots: &Slots, outcomes: &[Outcome]) -> FocusValues {
+    let is_focus = |t: usize| spec.focus.iter().any(|f| f == slots.tracked[t].name());
+    let focus: Vec<usize> = match spec.rank_by {
+        RankBy::Vif => (0..slots.regressors.len())
+            .filter(|&i| is_focus(slots.regressors[i].1))
+            .collect(),
+        RankBy::Shared => (0..slots.tracked.len())
+            .filter(|&t| is_focus(t) && slots.tracked[t].learner().is_some())
+            .collect(),
+    };
     outcomes
         .iter()
         .map(|o| {

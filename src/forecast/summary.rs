@@ -9,11 +9,13 @@
 
 use serde::Serialize;
 
+use crate::assess::AssessedRun;
 use crate::design::RegressorKind;
 use crate::diagnose::partition::{NUISANCE, TASK};
 use crate::quantile;
 use crate::report::RunReport;
 use crate::screen::Status;
+use crate::study::GlmSpec;
 use crate::study::Thresholds;
 
 /// The spread of one quantity over simulated runs (or participants).
@@ -46,12 +48,15 @@ impl Spread {
 /// What one simulated run contributes, kept small so that thousands fit in memory.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RunDigest {
+    /// The worst status over the run's GLMs.
     pub status: Status,
-    /// Per tracked regressor (events, then modulators in spec order): VIF, and the share
-    /// held with the learners' models other than its own.
+    /// Per slot (a GLM and a tracked regressor it holds, see [`Slots`]): the VIF.
     pub vif: Vec<Option<f64>>,
+    /// Per tracked regressor: the share held with the learners' models other than its
+    /// own, in the design with every learner.
     pub shared: Vec<Option<f64>>,
-    /// Per learner: GVIF of its set of modulators, plain and scaled.
+    /// Per slot of a GLM and a learner it holds: GVIF of the learner's set of modulators,
+    /// plain and scaled.
     pub gvif: Vec<(Option<f64>, Option<f64>)>,
 }
 
@@ -80,29 +85,78 @@ impl Tracked {
     }
 }
 
+/// What the forecast follows in each GLM: (GLM, tracked regressor) and (GLM, learner)
+/// pairs, for the GLMs that hold them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Slots {
+    pub glms: Vec<GlmSpec>,
+    pub tracked: Vec<Tracked>,
+    pub learners: Vec<String>,
+    /// (GLM index, tracked index), GLM by GLM.
+    pub regressors: Vec<(usize, usize)>,
+    /// (GLM index, learner index), GLM by GLM.
+    pub model_sets: Vec<(usize, usize)>,
+}
+
+impl Slots {
+    pub fn new(glms: &[GlmSpec], tracked: Vec<Tracked>, learners: Vec<String>) -> Self {
+        let mut regressors = Vec::new();
+        let mut model_sets = Vec::new();
+        for (g, glm) in glms.iter().enumerate() {
+            for (t, key) in tracked.iter().enumerate() {
+                if key.learner().is_none_or(|l| glm.holds(l)) {
+                    regressors.push((g, t));
+                }
+            }
+            for (l, learner) in learners.iter().enumerate() {
+                if glm.holds(learner) {
+                    model_sets.push((g, l));
+                }
+            }
+        }
+        Slots {
+            glms: glms.to_vec(),
+            tracked,
+            learners,
+            regressors,
+            model_sets,
+        }
+    }
+}
+
 impl RunDigest {
-    pub fn of(run: &RunReport, tracked: &[Tracked], learners: &[String]) -> RunDigest {
-        let position = |key: &Tracked| {
-            run.regressors.iter().position(|r| match key {
+    pub fn of(run: &AssessedRun, slots: &Slots) -> RunDigest {
+        let position = |report: &RunReport, key: &Tracked| {
+            report.regressors.iter().position(|r| match key {
                 Tracked::Event(name) => {
                     r.regressor.kind == RegressorKind::Onset && &r.regressor.name == name
                 }
                 Tracked::Modulator { learner, column } => {
-                    r.regressor.model.as_deref() == Some(learner.as_str())
+                    r.regressor.kind == RegressorKind::Modulator
+                        && r.regressor.model.as_deref() == Some(learner.as_str())
                         && r.regressor.column.as_deref() == Some(column.as_str())
                 }
             })
         };
-        let modulators = tracked;
-        let vif = modulators
+        let vif = slots
+            .regressors
             .iter()
-            .map(|m| position(m).and_then(|i| run.vif[i]))
+            .map(|&(g, t)| {
+                let report = &run.glms[g];
+                position(report, &slots.tracked[t]).and_then(|i| report.vif[i])
+            })
             .collect();
-        let shared = modulators
+        let shared = slots
+            .tracked
             .iter()
-            .map(|m| {
-                let name = &run.regressors[position(m)?].regressor.name;
-                let part = run.partition.iter().find(|p| &p.regressor == name)?;
+            .map(|key| {
+                let Tracked::Modulator { learner, column } = key else {
+                    return None;
+                };
+                let part = run.shares.iter().map(|s| &s.partition).find(|p| {
+                    p.model.as_deref() == Some(learner.as_str())
+                        && p.regressor.ends_with(&format!(":{column}"))
+                })?;
                 part.r2?;
                 let own = part.model.as_deref();
                 let share = part
@@ -118,17 +172,24 @@ impl RunDigest {
                 Some(share)
             })
             .collect();
-        let gvif = learners
+        let gvif = slots
+            .model_sets
             .iter()
-            .map(|l| {
-                run.model_sets
+            .map(|&(g, l)| {
+                run.glms[g]
+                    .model_sets
                     .iter()
-                    .find(|s| &s.model == l)
+                    .find(|s| s.model == slots.learners[l])
                     .map_or((None, None), |s| (s.gvif, s.gvif_scaled))
             })
             .collect();
         RunDigest {
-            status: run.status,
+            status: run
+                .glms
+                .iter()
+                .map(|r| r.status)
+                .max()
+                .unwrap_or(Status::Ok),
             vif,
             shared,
             gvif,
@@ -136,9 +197,10 @@ impl RunDigest {
     }
 }
 
-/// The forecast of one regressor (an event or a modulator) on one variant.
+/// The forecast of one regressor (an event or a modulator) in one GLM on one variant.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct RegressorForecast {
+    pub glm: String,
     /// The event's name, or the modulator's column `<learner>_<quantity>`.
     pub regressor: String,
     /// The modulator's learner; `null` for an event's onset regressor.
@@ -149,17 +211,21 @@ pub struct RegressorForecast {
     /// Share of runs with VIF ≥ the severe threshold (an undefined VIF counts).
     pub p_severe: f64,
     /// Share of the regressor's variance held jointly with the modulators of learners
-    /// other than its own (commonality components that include another model).
-    /// `null` for an event's onset regressor: the partition is computed for modulators.
+    /// other than its own (commonality components that include another model), in the
+    /// design with every learner, whatever the GLM. `null` for an event's onset
+    /// regressor: the partition is computed for modulators.
     pub shared_with_other_models: Option<Spread>,
 }
 
+/// The forecast of slot `index` of `slots.regressors`.
 pub fn regressor_forecast(
     index: usize,
-    key: &Tracked,
+    slots: &Slots,
     runs: &[&RunDigest],
     thresholds: &Thresholds,
 ) -> RegressorForecast {
+    let (g, t) = slots.regressors[index];
+    let key = &slots.tracked[t];
     let vifs: Vec<Option<f64>> = runs.iter().map(|r| r.vif[index]).collect();
     let share_at_least = |threshold: f64| {
         let hits = vifs
@@ -168,8 +234,9 @@ pub fn regressor_forecast(
             .count();
         hits as f64 / vifs.len().max(1) as f64
     };
-    let shared: Vec<Option<f64>> = runs.iter().map(|r| r.shared[index]).collect();
+    let shared: Vec<Option<f64>> = runs.iter().map(|r| r.shared[t]).collect();
     RegressorForecast {
+        glm: slots.glms[g].name.clone(),
         regressor: key.name().to_string(),
         learner: key.learner().map(str::to_string),
         p_caution_or_worse: share_at_least(thresholds.vif_caution),
@@ -179,20 +246,24 @@ pub fn regressor_forecast(
     }
 }
 
-/// The GVIF of one learner's set of modulators on one variant.
+/// The GVIF of one learner's set of modulators in one GLM on one variant.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ModelSetForecast {
+    pub glm: String,
     pub learner: String,
     pub gvif: Spread,
     /// GVIF^(1/(2·df)), comparable across set sizes (Fox & Monette 1992).
     pub gvif_scaled: Spread,
 }
 
-pub fn model_set_forecast(index: usize, learner: &str, runs: &[&RunDigest]) -> ModelSetForecast {
+/// The forecast of slot `index` of `slots.model_sets`.
+pub fn model_set_forecast(index: usize, slots: &Slots, runs: &[&RunDigest]) -> ModelSetForecast {
+    let (g, l) = slots.model_sets[index];
     let plain: Vec<Option<f64>> = runs.iter().map(|r| r.gvif[index].0).collect();
     let scaled: Vec<Option<f64>> = runs.iter().map(|r| r.gvif[index].1).collect();
     ModelSetForecast {
-        learner: learner.to_string(),
+        glm: slots.glms[g].name.clone(),
+        learner: slots.learners[l].clone(),
         gvif: Spread::of(&plain),
         gvif_scaled: Spread::of(&scaled),
     }

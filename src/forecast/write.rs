@@ -7,6 +7,7 @@ use std::fmt::Write as _;
 
 use super::participant::{CUE, CUE_ONSET, OUTCOME, OUTCOME_ONSET, SimulatedParticipant};
 use super::spec::{ForecastSpec, RunLength, TaskVariant};
+use crate::study::NoiseModel;
 
 /// The files of one variant's folder: (file name, contents).
 pub fn variant_files(
@@ -167,6 +168,18 @@ fn study_toml(spec: &ForecastSpec, variant: &TaskVariant) -> String {
             );
         }
         out.push_str("]\n");
+    }
+    for glm in &spec.glms {
+        let models: Vec<String> = glm.models.iter().map(|m| toml_string(m)).collect();
+        let _ = write!(
+            out,
+            "\n[[glm]]\nname = {}\nmodels = [{}]\n",
+            toml_string(&glm.name),
+            models.join(", ")
+        );
+    }
+    if let NoiseModel::Ar1(rho) = spec.noise {
+        let _ = write!(out, "\n[noise]\nmodel = \"ar1\"\nar1 = {rho:?}\n");
     }
     let t = &spec.thresholds;
     let _ = write!(

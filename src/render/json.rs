@@ -10,7 +10,7 @@ use std::io::Write;
 use serde::Serialize;
 
 use crate::cohort::Summaries;
-use crate::report::{Report, ReportHead, RunReport};
+use crate::report::{Report, ReportHead};
 use crate::screen::CLAIMS_NOTE;
 
 pub fn render(report: &Report) -> String {
@@ -25,10 +25,12 @@ pub fn render(report: &Report) -> String {
 }
 
 /// Writes a report's JSON as its runs arrive, byte for byte what [`render`] writes for
-/// the whole report: the head, then each run, then the cohort views.
+/// the whole report: the head, then each run's GLM entries, then the lists kept for
+/// after them (separations, model shares), then the cohort views.
 pub struct JsonStream<W: Write> {
     out: W,
-    runs: usize,
+    /// Items written to the list now open.
+    items: usize,
 }
 
 /// The head fields of a report, each already rendered as it sits in the report (e.g.
@@ -62,30 +64,43 @@ impl<W: Write> JsonStream<W> {
         out.write_all(b",\n  \"settings\": ")?;
         out.write_all(head.settings)?;
         out.write_all(b",\n  \"runs\": [")?;
-        Ok(JsonStream { out, runs: 0 })
+        Ok(JsonStream { out, items: 0 })
     }
 
-    /// A run already rendered by [`render_run`] (e.g. on another thread, or copied from
-    /// a shard's JSON).
-    pub fn rendered_run(&mut self, rendered: &[u8]) -> std::io::Result<()> {
-        if self.runs > 0 {
+    /// An item of the list now open, already rendered by [`render_item`] (e.g. on
+    /// another thread, or copied from a shard's JSON).
+    pub fn item(&mut self, rendered: &[u8]) -> std::io::Result<()> {
+        if self.items > 0 {
             self.out.write_all(b",")?;
         }
         self.out.write_all(b"\n    ")?;
         self.out.write_all(rendered)?;
-        self.runs += 1;
+        self.items += 1;
         Ok(())
     }
 
-    pub fn finish(mut self, summaries: &Summaries) -> std::io::Result<W> {
-        if self.runs > 0 {
+    /// Closes the list now open and opens the report's list `key`.
+    pub fn next_list(&mut self, key: &str) -> std::io::Result<()> {
+        self.close_list()?;
+        write!(self.out, ",\n  \"{key}\": [")?;
+        self.items = 0;
+        Ok(())
+    }
+
+    fn close_list(&mut self) -> std::io::Result<()> {
+        if self.items > 0 {
             self.out.write_all(b"\n  ")?;
         }
-        self.out.write_all(b"]")?;
+        self.out.write_all(b"]")
+    }
+
+    pub fn finish(mut self, summaries: &Summaries) -> std::io::Result<W> {
+        self.close_list()?;
         self.field("subjects", &summaries.subjects)?;
         self.field("cohort", &summaries.cohort)?;
         self.field("subject_partition", &summaries.subject_partition)?;
         self.field("cohort_partition", &summaries.cohort_partition)?;
+        self.field("separation_summary", &summaries.separations)?;
         self.field("claims_note", &CLAIMS_NOTE)?;
         self.out.write_all(b"\n}\n")?;
         self.out.flush()?;
@@ -105,10 +120,10 @@ fn render_field<T: Serialize>(value: &T) -> std::io::Result<Vec<u8>> {
     Ok(rendered)
 }
 
-/// One run's JSON as it sits in the report's list of runs.
-pub fn render_run(run: &RunReport) -> std::io::Result<Vec<u8>> {
+/// One item's JSON as it sits in one of the report's lists (runs, separations, …).
+pub fn render_item<T: Serialize>(item: &T) -> std::io::Result<Vec<u8>> {
     let mut rendered = Vec::new();
-    write_indented(&mut rendered, run, b"\n    ")?;
+    write_indented(&mut rendered, item, b"\n    ")?;
     Ok(rendered)
 }
 

@@ -22,7 +22,7 @@ pub fn render(report: &Report) -> String {
     let mut text = String::new();
     let settings = &report.settings;
     text.push_str(&format!(
-        "{} — {} participants, {} runs\nTR {} s, microtime {} bins, reference {}, high-pass {} s, modulators {}\n{}.\n\n",
+        "{} — {} participants, {} runs\nTR {} s, microtime {} bins, reference {}, high-pass {} s, modulators {}, noise {}\n{}.\n\n",
         report.study.name,
         report.cohort.subjects,
         report.cohort.runs,
@@ -31,12 +31,17 @@ pub fn render(report: &Report) -> String {
         settings.reference,
         if settings.high_pass > 0.0 { settings.high_pass.to_string() } else { "off".into() },
         if settings.centring { "mean-centred" } else { "not centred" },
-        crate::report::DIAGNOSTICS_SPACE
+        noise(settings),
+        settings.diagnostics_space
     ));
-    for run in &report.runs {
-        text.push_str(&run_block(run));
-        text.push('\n');
+    for glm in &settings.glms {
+        text.push_str(&format!("GLM \"{}\": {}\n\n", glm.name, glm_contents(glm)));
+        for run in report.runs.iter().filter(|r| r.glm == glm.name) {
+            text.push_str(&run_block(run));
+            text.push('\n');
+        }
     }
+    text.push_str(&separation_tables(report));
     text.push_str(&subject_table(report));
     text.push_str(&subject_partition(report));
     text.push_str(&cohort_partition(report));
@@ -57,12 +62,122 @@ pub fn render(report: &Report) -> String {
         let note = wrap(&report.claims_note, 90, "  ");
         text.push_str(&format!("\nComparing models\n{note}\n"));
     }
-    if report.settings.orthogonalisation != "none" {
-        let note = wrap(crate::report::ORTHOGONALISATION_CAUTION, 90, "  ");
-        text.push_str(&format!("\nAbout 'VIF serial'\n{note}\n"));
+    if let Some(caution) = report.runs.iter().find_map(|r| r.orthogonalised.as_ref()) {
+        let note = wrap(&caution.caution, 90, "  ");
+        text.push_str(&format!("\nAbout 'VIF {}'\n{note}\n", caution.method));
+    }
+    if has_suppression(report) {
+        let note = wrap(SUPPRESSION_NOTE, 90, "  ");
+        text.push_str(&format!("\nNegative components\n{note}\n"));
     }
     text
 }
+
+/// Said where a commonality component is negative.
+pub const SUPPRESSION_NOTE: &str = "A negative component is suppression: together, those groups explain less of the modulator than their parts alone would (each group's share is counted once in the components, so they still sum to 100% with the own share). It is a property of the design, not an error (Ray-Mukherjee et al. 2014).";
+
+fn has_suppression(report: &Report) -> bool {
+    report
+        .runs
+        .iter()
+        .flat_map(|r| &r.partition)
+        .flat_map(|p| &p.components)
+        .any(|c| c.share < 0.0)
+}
+
+/// The noise model in words.
+pub(crate) fn noise(settings: &crate::report::Settings) -> String {
+    match settings.noise.ar1 {
+        Some(rho) => format!("AR(1) with coefficient {rho} (prewhitened)"),
+        None => "white".to_string(),
+    }
+}
+
+/// What a GLM holds, in words.
+pub(crate) fn glm_contents(glm: &crate::study::GlmSpec) -> String {
+    if glm.models.is_empty() {
+        "the events' regressors (no model)".to_string()
+    } else {
+        format!(
+            "the events' regressors and the modulators of {}",
+            glm.models.join(", ")
+        )
+    }
+}
+
+/// The models' separation: the cohort's summary, then every run.
+fn separation_tables(report: &Report) -> String {
+    if report.separation_summary.is_empty() {
+        return String::new();
+    }
+    let mut summary = new_table(&[
+        "modulator",
+        "against",
+        "partial R² median",
+        "range",
+        "trial r median",
+        "range",
+        "participants",
+    ]);
+    for s in &report.separation_summary {
+        let range = |r: &crate::cohort::Range| match (r.min, r.max) {
+            (Some(low), Some(high)) => format!("{}–{}", percent_tenths(low), percent_tenths(high)),
+            _ => "undefined".to_string(),
+        };
+        summary.add_row(vec![
+            s.regressor.clone(),
+            s.models[1].clone(),
+            s.partial_r2
+                .median
+                .map_or("undefined".into(), percent_tenths),
+            range(&s.partial_r2),
+            s.trial_correlation
+                .median
+                .map_or("undefined".into(), |r| format!("{r:.2}")),
+            match (s.trial_correlation.min, s.trial_correlation.max) {
+                (Some(low), Some(high)) => format!("{low:.2} to {high:.2}"),
+                _ => "undefined".to_string(),
+            },
+            s.participants.to_string(),
+        ]);
+    }
+    let mut runs = new_table(&[
+        "subject",
+        "run",
+        "modulator",
+        "against",
+        "partial R²",
+        "trial r",
+        "canonical r",
+    ]);
+    for entry in &report.separations {
+        let canonical: Vec<String> = entry
+            .separation
+            .canonical_correlations
+            .iter()
+            .map(|r| format!("{r:.2}"))
+            .collect();
+        for m in &entry.separation.modulators {
+            runs.add_row(vec![
+                entry.subject.clone(),
+                entry.run.clone(),
+                m.regressor.clone(),
+                entry.separation.models[1].clone(),
+                m.partial_r2.map_or("undefined".into(), percent_tenths),
+                m.trial_correlation
+                    .map_or("n/a".into(), |r| format!("{r:.2}")),
+                canonical.join(", "),
+            ]);
+        }
+    }
+    format!(
+        "Telling the models apart (in the design with every model; sets no status)\n{}\n\n{summary}\n\n{runs}\n\n",
+        wrap(SEPARATION_NOTE, 90, "  ")
+    )
+}
+
+/// What the separation numbers are, said with them.
+pub const SEPARATION_NOTE: &str = "Partial R²: the share of what a modulator has left after everything else in its own GLM (task, nuisance, its model's other modulators) that the other model's modulators reproduce. Near 100%, the two models predict nearly the same signal on it, so comparing their GLMs there rests on the small remainder; how often an analysis would still pick the right model depends on scans, participants and effect size, which these numbers do not decide. The trial r is the correlation of the two models' corresponding quantities across trials, before convolution.";
 
 /// Our layout: a rule under the header and one under the last row, nothing else.
 const COMPACT: TableStyle = TableStyle::new()
@@ -184,8 +299,9 @@ pub(crate) fn new_table(header: &[&str]) -> Table {
 fn run_block(run: &RunReport) -> String {
     let serial = run.orthogonalised.as_ref();
     let mut header = vec!["regressor", "kind", "model", "VIF", "SE x", "status"];
-    if serial.is_some() {
-        header.push("VIF serial");
+    let serial_heading = serial.map(|view| format!("VIF {}", view.method));
+    if let Some(heading) = &serial_heading {
+        header.push(heading);
     }
     let mut table = new_table(&header);
     for (index, entry) in run.regressors.iter().enumerate() {
@@ -218,9 +334,10 @@ fn run_block(run: &RunReport) -> String {
         .as_ref()
         .map_or_else(String::new, |s| format!(" · session {s}"));
     let mut text = format!(
-        "subject {}{session} · run {} · {} scans · {} drift columns removed · {}\n{table}\n",
+        "subject {}{session} · run {} · GLM {} · {} scans · {} drift columns removed · {}\n{table}\n",
         run.subject,
         run.run,
+        run.glm,
         run.scans,
         run.drift_columns,
         run.status.label()
@@ -238,7 +355,8 @@ fn run_block(run: &RunReport) -> String {
     }
     if let Some(view) = serial {
         text.push_str(&format!(
-            "  'VIF serial': modulators orthogonalised in the order {} (see the note at the end)\n",
+            "  'VIF {}': modulators orthogonalised in the order {} (see the note at the end)\n",
+            view.method,
             view.order.join(" → ")
         ));
     }
@@ -292,23 +410,30 @@ fn entanglement(run: &RunReport) -> String {
             continue;
         };
         let own_model = partition.model.as_deref().unwrap_or_default();
-        let shared: Vec<String> = partition
-            .shared_with
+        let parts: Vec<String> = partition
+            .components
             .iter()
-            .map(|g| {
-                let own = if g.group == own_model {
-                    " (own model)"
-                } else {
-                    ""
-                };
-                format!("with {}{own} {}", g.group, percent_tenths(g.share))
+            .map(|c| {
+                let groups: Vec<String> = c
+                    .groups
+                    .iter()
+                    .map(|g| {
+                        if g == own_model {
+                            format!("{g} (own model)")
+                        } else {
+                            g.clone()
+                        }
+                    })
+                    .collect();
+                let only = if c.groups.len() == 1 { "only " } else { "" };
+                format!("{only}{} {}", groups.join(" & "), percent_tenths(c.share))
             })
             .collect();
         text.push_str(&format!(
-            "  variance of {}: {} its own; shared {}\n",
+            "  variance of {}: own {}; {}\n",
             partition.regressor,
             percent_tenths(unique),
-            shared.join(", ")
+            parts.join("; ")
         ));
     }
     for overlap in &run.model_overlap {
@@ -372,6 +497,7 @@ fn subject_table(report: &Report) -> String {
         "worst VIF",
         "regressor",
         "run",
+        "GLM",
         "worst CI",
         "most shared with another model",
         "status",
@@ -392,16 +518,19 @@ fn subject_table(report: &Report) -> String {
             ratio(subject.worst_vif),
             subject.worst_regressor.clone().unwrap_or_default(),
             subject.worst_run.clone().unwrap_or_default(),
+            subject.worst_glm.clone().unwrap_or_default(),
             ratio(subject.worst_condition_index),
             shared,
             subject.status.label().to_string(),
             subject.runs_flagged.join(", "),
         ]);
     }
-    for column in [1, 4] {
+    for column in [1, 5] {
         if let Some(column) = table.column_mut(column) {
             column.set_cell_alignment(CellAlignment::Right);
         }
     }
-    format!("Participants (CI: largest condition index of the filtered design)\n{table}\n")
+    format!(
+        "Participants (worst over runs and GLMs; CI: largest condition index of the filtered design; shares with other models in the design with every model)\n{table}\n"
+    )
 }

@@ -19,12 +19,27 @@ struct Builder {
 }
 
 impl Builder {
-    /// `header` starts with "subject", "run".
+    /// A table of GLM entries: `header` starts with "subject", "run"; a `session`
+    /// column follows when the study has sessions, then `glm`.
     fn new(report: &Report, header: &[&str]) -> Self {
+        Builder::with_key(report, header, true)
+    }
+
+    /// A table of a run's entries that belong to no one GLM (no `glm` column).
+    fn per_run(report: &Report, header: &[&str]) -> Self {
+        Builder::with_key(report, header, false)
+    }
+
+    fn with_key(report: &Report, header: &[&str], glm: bool) -> Self {
         let sessions = report.runs.iter().any(|r| r.session.is_some());
         let mut header = header.to_vec();
+        let mut at = 2;
         if sessions {
-            header.insert(2, "session");
+            header.insert(at, "session");
+            at += 1;
+        }
+        if glm {
+            header.insert(at, "glm");
         }
         Builder {
             text: format!("{}\n", header.join("\t")),
@@ -33,9 +48,16 @@ impl Builder {
     }
 
     fn row(&mut self, run: &RunReport, cells: Vec<String>) {
-        let mut all = vec![clean(&run.subject), clean(&run.run)];
+        let mut key = vec![run.glm.as_str()];
+        key.extend(cells.iter().map(String::as_str));
+        let cells: Vec<String> = key.into_iter().map(str::to_string).collect();
+        self.row_of(&run.subject, &run.run, run.session.as_deref(), cells);
+    }
+
+    fn row_of(&mut self, subject: &str, run: &str, session: Option<&str>, cells: Vec<String>) {
+        let mut all = vec![clean(subject), clean(run)];
         if self.sessions {
-            all.push(run.session.as_deref().map_or_else(|| "n/a".into(), clean));
+            all.push(session.map_or_else(|| "n/a".into(), clean));
         }
         all.extend(cells.iter().map(|c| clean(c)));
         self.text.push_str(&all.join("\t"));
@@ -65,8 +87,11 @@ pub fn render(report: &Report) -> Vec<TsvTable> {
         model_overlap(report),
         signal(report),
         flags(report),
+        separations(report),
+        model_shares(report),
         subjects(report),
         cohort_partition(report),
+        separation_summary(report),
     ]
 }
 
@@ -411,6 +436,7 @@ fn subjects(report: &Report) -> TsvTable {
                 exact(s.worst_vif),
                 text(&s.worst_regressor),
                 text(&s.worst_run),
+                text(&s.worst_glm),
                 exact(s.worst_condition_index),
                 text(&s.largest_shared.as_ref().map(|l| l.regressor.clone())),
                 text(&s.largest_shared.as_ref().map(|l| l.model.clone())),
@@ -426,6 +452,11 @@ fn subjects(report: &Report) -> TsvTable {
             "worst_vif",
             "worst_regressor",
             "worst_run",
+            "worst_glm",
+            "worst_condition_index",
+            "largest_shared_regressor",
+            "largest_shared_model",
+            "largest_shared",
             "status",
             "runs_flagged",
         ],
@@ -453,6 +484,118 @@ fn cohort_partition(report: &Report) -> TsvTable {
         &["regressor", "part", "participants", "median", "min", "max"],
         rows,
         "cohort_partition",
+    )
+}
+
+fn separations(report: &Report) -> TsvTable {
+    let mut table = Builder::per_run(
+        report,
+        &[
+            "subject",
+            "run",
+            "model",
+            "other_model",
+            "regressor",
+            "partial_r2",
+            "corresponding",
+            "trial_correlation",
+            "canonical_correlations",
+        ],
+    );
+    for entry in &report.separations {
+        let s = &entry.separation;
+        let canonical: Vec<String> = s
+            .canonical_correlations
+            .iter()
+            .map(f64::to_string)
+            .collect();
+        for m in &s.modulators {
+            table.row_of(
+                &entry.subject,
+                &entry.run,
+                entry.session.as_deref(),
+                vec![
+                    s.models[0].clone(),
+                    s.models[1].clone(),
+                    m.regressor.clone(),
+                    exact(m.partial_r2),
+                    text(&m.corresponding),
+                    exact(m.trial_correlation),
+                    canonical.join(","),
+                ],
+            );
+        }
+    }
+    table.done("separations")
+}
+
+fn model_shares(report: &Report) -> TsvTable {
+    let mut table = Builder::per_run(
+        report,
+        &[
+            "subject",
+            "run",
+            "regressor",
+            "r2",
+            "unique",
+            "groups",
+            "share",
+        ],
+    );
+    for entry in &report.model_shares {
+        let p = &entry.partition;
+        for component in &p.components {
+            table.row_of(
+                &entry.subject,
+                &entry.run,
+                entry.session.as_deref(),
+                vec![
+                    p.regressor.clone(),
+                    exact(p.r2),
+                    exact(p.unique),
+                    component.groups.join("+"),
+                    component.share.to_string(),
+                ],
+            );
+        }
+    }
+    table.done("model_shares")
+}
+
+fn separation_summary(report: &Report) -> TsvTable {
+    let rows = report
+        .separation_summary
+        .iter()
+        .map(|s| {
+            vec![
+                s.models[0].clone(),
+                s.models[1].clone(),
+                s.regressor.clone(),
+                s.participants.to_string(),
+                exact(s.partial_r2.median),
+                exact(s.partial_r2.min),
+                exact(s.partial_r2.max),
+                exact(s.trial_correlation.median),
+                exact(s.trial_correlation.min),
+                exact(s.trial_correlation.max),
+            ]
+        })
+        .collect();
+    plain_table(
+        &[
+            "model",
+            "other_model",
+            "regressor",
+            "participants",
+            "partial_r2_median",
+            "partial_r2_min",
+            "partial_r2_max",
+            "trial_correlation_median",
+            "trial_correlation_min",
+            "trial_correlation_max",
+        ],
+        rows,
+        "separation_summary",
     )
 }
 

@@ -10,6 +10,7 @@ use crate::diagnose::{
 };
 use crate::flags::{Flag, Severity};
 use crate::screen::{EntangledDimension, Status, dimension_severity, vif_status};
+use crate::settings::Orthogonalisation;
 use crate::signal::RegionPartition;
 use crate::study::Thresholds;
 
@@ -29,6 +30,8 @@ pub struct RunReport {
     /// The BIDS session; omitted from JSON when the study has none.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub session: Option<String>,
+    /// The GLM this report describes.
+    pub glm: String,
     pub scans: usize,
     /// Constant and cosine columns projected out.
     pub drift_columns: usize,
@@ -95,7 +98,7 @@ impl RunViews {
     }
 }
 
-/// The numbers that serial orthogonalisation changes, beside the as-written ones.
+/// The numbers that orthogonalisation changes, beside the as-written ones.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct OrthogonalisedView {
     pub method: Text,
@@ -111,10 +114,17 @@ pub struct OrthogonalisedView {
 /// Said wherever orthogonalised numbers are shown.
 pub const ORTHOGONALISATION_CAUTION: &str = "Serial orthogonalisation does not remove redundancy, it assigns it. The fitted space is unchanged; each modulator's column loses what it shares with the modulators before it, and its estimate takes over what it shares with the modulators after it. So the last modulator keeps its estimate and its test (its VIF drops only because its column got shorter), while the earlier ones no longer measure what their models alone predict (Mumford, Poline & Poldrack 2015). Statuses and flags refer to the design as written.";
 
+/// Said wherever numbers orthogonalised within events are shown.
+pub const WITHIN_EVENT_CAUTION: &str = "Orthogonalisation within events (each modulator's trial values replaced by their part orthogonal to the modulators listed before it on the same event, before convolution) does not remove redundancy either, it assigns it: the earlier modulators' estimates take over what they share with the later ones, which then measure only what is left of them. Because it acts before convolution and within one event, the convolved columns are not made orthogonal to other events' regressors, and the fitted space of the event's modulators is unchanged (Mumford, Poline & Poldrack 2015). Statuses and flags refer to the design as written.";
+
 impl OrthogonalisedView {
-    pub fn new(design: &Design, diagnostics: Diagnostics) -> Self {
+    pub fn new(method: Orthogonalisation, design: &Design, diagnostics: Diagnostics) -> Self {
+        let caution = match method {
+            Orthogonalisation::WithinEvent => WITHIN_EVENT_CAUTION,
+            _ => ORTHOGONALISATION_CAUTION,
+        };
         OrthogonalisedView {
-            method: Text::Borrowed("serial"),
+            method: Text::Borrowed(method.label()),
             order: design
                 .regressors
                 .iter()
@@ -125,7 +135,7 @@ impl OrthogonalisedView {
             efficiency: diagnostics.efficiency,
             model_sets: diagnostics.model_sets,
             contrasts: diagnostics.contrasts,
-            caution: Text::Borrowed(ORTHOGONALISATION_CAUTION),
+            caution: Text::Borrowed(caution),
         }
     }
 }
@@ -141,6 +151,7 @@ pub struct RunScreening {
 
 impl RunReport {
     pub fn new(
+        glm: &str,
         design: Design,
         diagnostics: Diagnostics,
         screening: RunScreening,
@@ -173,6 +184,7 @@ impl RunReport {
             subject: design.subject,
             run: design.run,
             session: design.session,
+            glm: glm.to_string(),
             scans: design.scans,
             drift_columns: design.drift.len(),
             events: design.events,
@@ -212,16 +224,38 @@ impl RunReport {
 }
 
 impl RunReport {
-    /// What the cohort views need of this run.
-    pub fn digest(&self) -> crate::cohort::RunDigest {
-        crate::cohort::RunDigest::new(
-            &self.subject,
-            &self.run,
+    /// What the cohort views need of this GLM's report.
+    pub fn glm_digest(&self) -> crate::cohort::GlmDigest {
+        crate::cohort::GlmDigest::new(
+            &self.glm,
             self.status,
             self.regressors.iter().map(|r| &r.regressor),
             &self.vif,
             &self.condition_indices,
-            &self.partition,
         )
     }
+}
+
+/// One ordered pair of models' separation in one run, as the report's `separations`
+/// list holds it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RunSeparation {
+    pub subject: String,
+    pub run: String,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub session: Option<String>,
+    #[serde(flatten)]
+    pub separation: crate::diagnose::ModelSeparation,
+}
+
+/// A modulator's partition in the design with every model (its own share, the R² on
+/// each group alone, the commonality components), one run: the report's `model_shares`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ModulatorShare {
+    pub subject: String,
+    pub run: String,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub session: Option<String>,
+    #[serde(flatten)]
+    pub partition: RegressorPartition,
 }

@@ -6,7 +6,7 @@ mod parse;
 pub(crate) mod schema;
 
 pub use parse::parse_study;
-pub(crate) use parse::read_thresholds;
+pub(crate) use parse::{read_glms, read_noise, read_thresholds};
 
 use std::path::PathBuf;
 
@@ -25,6 +25,68 @@ pub struct Study {
     pub models: Vec<ModelSpec>,
     pub nuisance: Option<NuisanceSpec>,
     pub thresholds: Thresholds,
+    /// The GLMs the lab will fit: declared with `[[glm]]`, or one per model.
+    pub glms: Vec<GlmSpec>,
+    /// How the scans' noise is modelled (`[noise]`; white by default).
+    pub noise: NoiseModel,
+}
+
+/// One GLM of the analysis: every event's onset regressor (and derivatives), every task
+/// modulator, the modulators of `models`, and the nuisance regressors.
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub struct GlmSpec {
+    /// Free text, unique; shown in every output.
+    pub name: String,
+    /// The models whose modulators the GLM holds, in the study file's order of models
+    /// (columns keep that order whatever order `[[glm]] models` lists).
+    pub models: Vec<String>,
+}
+
+impl GlmSpec {
+    /// One GLM per model, named after it; one GLM of the events alone without models.
+    pub fn one_per_model(models: &[String]) -> Vec<GlmSpec> {
+        if models.is_empty() {
+            return vec![GlmSpec {
+                name: EVENTS_ONLY_GLM.to_string(),
+                models: Vec::new(),
+            }];
+        }
+        models
+            .iter()
+            .map(|m| GlmSpec {
+                name: m.clone(),
+                models: vec![m.clone()],
+            })
+            .collect()
+    }
+
+    pub fn holds(&self, model: &str) -> bool {
+        self.models.iter().any(|m| m == model)
+    }
+}
+
+/// The name of the one GLM of a study without models.
+pub const EVENTS_ONLY_GLM: &str = "events";
+
+/// The noise model every diagnostic is computed in.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub enum NoiseModel {
+    /// Independent scans: ordinary least squares.
+    #[default]
+    White,
+    /// First-order autoregressive noise with this coefficient (0 ≤ ρ < 1): generalized
+    /// least squares with Σᵢⱼ = ρ^|i−j|.
+    Ar1(f64),
+}
+
+impl NoiseModel {
+    /// The AR(1) coefficient; 0 for white noise.
+    pub fn coefficient(self) -> f64 {
+        match self {
+            NoiseModel::White => 0.0,
+            NoiseModel::Ar1(rho) => rho,
+        }
+    }
 }
 
 impl Study {
@@ -120,6 +182,9 @@ pub struct EventSpec {
     pub duration: Duration,
     /// Long form: only rows whose `column` holds `value` are trials of this event.
     pub selector: Option<RowSelector>,
+    /// Task modulators: trial-table columns entered as parametric modulators of this
+    /// event in every GLM (named `event:column`, in the partition's task group).
+    pub modulators: Vec<String>,
 }
 
 #[derive(Debug, Clone, PartialEq)]

@@ -16,6 +16,10 @@ use crate::error::{Location, Problem, Result};
 
 use crate::toml_read::{Table, TomlReader, get, has_key, parse_toml};
 
+mod analysis;
+
+pub(crate) use analysis::{read_glms, read_noise};
+
 /// Models plus the task and nuisance groups must stay within the partition's group limit.
 use super::MAX_MODELS;
 
@@ -92,6 +96,14 @@ impl Reader<'_> {
         let models = self.models(root, events.as_deref().unwrap_or(&[]));
         let nuisance = self.nuisance(root, &dir);
         let thresholds = self.thresholds(root);
+        let glms = match &models {
+            Some(models) => {
+                let names: Vec<String> = models.iter().map(|m| m.name.clone()).collect();
+                analysis::read_glms(&mut self.0, root, &names)
+            }
+            None => None,
+        };
+        let noise = analysis::read_noise(&mut self.0, root);
 
         let default_name = self
             .path
@@ -109,6 +121,8 @@ impl Reader<'_> {
             models: models?,
             nuisance: nuisance?,
             thresholds: thresholds?,
+            glms: glms?,
+            noise: noise?,
         })
     }
 
@@ -332,15 +346,21 @@ impl Reader<'_> {
                     },
                 },
             };
-            match (name, onset, duration, selector) {
-                (Some(name), Some(onset_column), Some(duration), Some(selector)) => {
-                    events.push(EventSpec {
-                        name,
-                        onset_column,
-                        duration,
-                        selector,
-                    })
-                }
+            let modulators = self.task_modulators(table);
+            match (name, onset, duration, selector, modulators) {
+                (
+                    Some(name),
+                    Some(onset_column),
+                    Some(duration),
+                    Some(selector),
+                    Some(modulators),
+                ) => events.push(EventSpec {
+                    name,
+                    onset_column,
+                    duration,
+                    selector,
+                    modulators,
+                }),
                 _ => complete = false,
             }
         }
@@ -363,6 +383,15 @@ impl Reader<'_> {
                         span,
                         format!("\"{name}\" cannot name a model: the variance partition uses it for a group of regressors"),
                         "choose another name".into(),
+                    );
+                    None
+                }
+                Some(name) if event_names.contains(&name.as_str()) => {
+                    let span = get(table, "name").map_or(span.clone(), |v| v.span());
+                    self.problem_with_hint(
+                        span,
+                        format!("\"{name}\" names both an event and a model"),
+                        "task modulators are called event:column and models' modulators model:column, so a model and an event need different names".into(),
                     );
                     None
                 }

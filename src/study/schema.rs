@@ -12,6 +12,8 @@ pub const TOP_LEVEL: &[&str] = &[
     "nuisance",
     "thresholds",
     "bids",
+    "glm",
+    "noise",
 ];
 
 /// Group names of the variance partition, which a model may not take.
@@ -34,7 +36,16 @@ pub fn keys_of(section: &str) -> &'static [&'static str] {
         "filter" => &["high_pass"],
         "hrf" => &["derivative"],
         "trials" => &["file", "subject", "run"],
-        "event" => &["name", "onset", "duration", "type_column", "type"],
+        "event" => &[
+            "name",
+            "onset",
+            "duration",
+            "type_column",
+            "type",
+            "modulators",
+        ],
+        "glm" => &["name", "models"],
+        "noise" => &["model", "ar1"],
         "model" => &["name", "modulators"],
         "modulators" => &["event", "column"],
         "nuisance" => &["file", "columns"],

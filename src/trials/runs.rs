@@ -58,13 +58,15 @@ pub struct EventTrials {
     pub lines: Vec<usize>,
     /// Trials whose duration cell was missing (taken as 0 s, an impulse).
     pub missing_durations: usize,
-    /// One entry per modulator that a model attaches to this event, in study order.
+    /// One entry per modulator of this event, in study order: the event's task
+    /// modulators first, then each model's.
     pub modulators: Vec<ModulatorValues>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
 pub struct ModulatorValues {
-    pub model: String,
+    /// The model whose modulator this is; `None` for a task modulator of the event.
+    pub model: Option<String>,
     pub column: String,
     /// One value per trial of the event; `None` where the cell was missing.
     pub values: Vec<Option<f64>>,
@@ -75,7 +77,8 @@ struct EventColumns {
     onset: usize,
     duration: Option<usize>,
     selector: Option<(usize, String)>,
-    modulators: Vec<(String, String, usize)>,
+    /// (model — `None` for a task modulator —, column, index).
+    modulators: Vec<(Option<String>, String, usize)>,
 }
 
 /// The runs of `table`: `labels` names its participant and run columns, `tr` (seconds)
@@ -151,11 +154,21 @@ impl<'s> RunCollector<'s> {
                 .map(|index| Some((index, selector.value.clone()))),
             };
             let mut modulators = Vec::new();
+            for task_column in &event.modulators {
+                let wanted_by = format!("a task modulator of event \"{}\"", event.name);
+                if let Some(index) = column(task_column, wanted_by) {
+                    modulators.push((None, task_column.clone(), index));
+                }
+            }
             for model in &study.models {
                 for modulator in model.modulators.iter().filter(|m| m.event == event.name) {
                     let wanted_by = format!("model \"{}\"", model.name);
                     if let Some(index) = column(&modulator.column, wanted_by) {
-                        modulators.push((model.name.clone(), modulator.column.clone(), index));
+                        modulators.push((
+                            Some(model.name.clone()),
+                            modulator.column.clone(),
+                            index,
+                        ));
                     }
                 }
             }

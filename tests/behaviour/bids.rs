@@ -270,7 +270,12 @@ fn the_demo_bids_copy_checks_exactly_like_the_flat_demo() {
         CheckOptions::default(),
     )
     .unwrap_or_else(|e| panic!("{e}"));
-    assert_eq!(bids.runs.len(), 60);
+    assert_eq!(
+        bids.runs.len(),
+        120,
+        "60 runs, each in the GLM of each learner"
+    );
+    assert_eq!(bids.separations, flat.separations);
     assert_eq!(vifs(&bids), vifs(&flat));
     assert_eq!(
         bids.runs.len(),
@@ -354,7 +359,7 @@ fn sessions_are_kept_in_every_output_and_fill_nuisance_templates() {
     assert!(json.contains("\"session\": \"pre\""));
     let tsv = tangle::render::tsv::render_joined(&report);
     assert!(
-        tsv.starts_with("subject\trun\tsession\tregressor"),
+        tsv.starts_with("subject\trun\tsession\tglm\tregressor"),
         "{}",
         &tsv[..80]
     );

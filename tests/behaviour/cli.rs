@@ -1,6 +1,8 @@
 //! The binary on small fixtures: outputs, exit codes and the behaviour promised in the README.
 
-use crate::common::{Lcg, StudyDir, paired, regressor_names, study_toml, trials_csv};
+use crate::common::{
+    Lcg, StudyDir, demo_with_joint_glm, paired, regressor_names, study_toml, trials_csv,
+};
 use predicates::prelude::*;
 use serde_json::Value;
 
@@ -12,20 +14,6 @@ fn vif(run: &Value, name: &str) -> Option<f64> {
         .position(|r| r["name"] == name)
         .unwrap();
     run["vif"][index].as_f64()
-}
-
-/// The demo's JSON report, with extra options.
-fn demo_json(args: &[&str]) -> Value {
-    let output = assert_cmd::Command::cargo_bin("tangle")
-        .unwrap()
-        .args(["demo", "--format", "json"])
-        .args(args)
-        .assert()
-        .success()
-        .get_output()
-        .stdout
-        .clone();
-    serde_json::from_slice(&output).unwrap()
 }
 
 fn has_code(run: &Value, code: &str) -> bool {
@@ -97,6 +85,9 @@ modulators = [ { event = "outcome", column = "a" }, { event = "outcome", column 
 [[model]]
 name = "whole"
 modulators = [ { event = "outcome", column = "total" } ]
+[[glm]]
+name = "parts and whole"
+models = ["parts", "whole"]
 "#;
 
 #[test]
@@ -324,8 +315,10 @@ fn tsv_tables_go_to_stdout_in_sections_or_to_sibling_files() {
         .clone();
     let text = String::from_utf8(output).unwrap();
     let lines: Vec<&str> = text.lines().collect();
-    assert!(lines[0].starts_with("subject\trun\tregressor\tkind"));
-    assert!(lines[1].starts_with("01\t1\tcue\tonset\tcue\tn/a\tn/a\ttrue\t"));
+    // Every per-run table names the GLM after the run (a study without models has one
+    // GLM of its events, named "events").
+    assert!(lines[0].starts_with("subject\trun\tglm\tregressor\tkind"));
+    assert!(lines[1].starts_with("01\t1\tevents\tcue\tonset\tcue\tn/a\tn/a\ttrue\t"));
     assert_eq!(lines[3], "");
     for section in [
         "# dimensions",
@@ -342,7 +335,7 @@ fn tsv_tables_go_to_stdout_in_sections_or_to_sibling_files() {
     assert_eq!(regressors.lines().count(), 3);
     let dimensions = std::fs::read_to_string(dir.path("out/run.dimensions.tsv")).unwrap();
     assert!(dimensions.starts_with(
-        "subject\trun\tdimension\tcondition_index\tregressor\tproportion\tentangled\n"
+        "subject\trun\tglm\tdimension\tcondition_index\tregressor\tproportion\tentangled\n"
     ));
     assert_eq!(
         dimensions.lines().count(),
@@ -494,8 +487,9 @@ fn exact_dependencies_leave_conditioning_defined_for_the_rest() {
 #[test]
 fn the_demo_names_the_entangled_regressors_of_its_most_entangled_volunteer() {
     // Volunteer 04's fitted hybrid barely changes associability (η ≈ 0.002), so both
-    // learners are delta rules in all but name (make_demo prints r(pe) = 1.000).
-    let report = demo_json(&[]);
+    // learners are delta rules in all but name (make_demo prints r(pe) = 1.000): in
+    // the GLM with both learners their prediction errors are entangled.
+    let report = demo_with_joint_glm().json(&[]);
     let runs: Vec<&Value> = report["runs"]
         .as_array()
         .unwrap()
@@ -520,7 +514,7 @@ fn the_demo_names_the_entangled_regressors_of_its_most_entangled_volunteer() {
 
 #[test]
 fn serial_orthogonalisation_is_shown_beside_the_design_as_written() {
-    let models = "[[model]]\nname = \"a\"\nmodulators = [ { event = \"outcome\", column = \"x\" } ]\n[[model]]\nname = \"b\"\nmodulators = [ { event = \"outcome\", column = \"y\" } ]\n";
+    let models = "[[model]]\nname = \"a\"\nmodulators = [ { event = \"outcome\", column = \"x\" } ]\n[[model]]\nname = \"b\"\nmodulators = [ { event = \"outcome\", column = \"y\" } ]\n[[glm]]\nname = \"both\"\nmodels = [\"a\", \"b\"]\n";
     let dir = modulator_study(&["x", "y"], models, |_, rng| {
         let x = rng.uniform(-1.0, 1.0);
         vec![
@@ -557,7 +551,7 @@ fn serial_orthogonalisation_is_shown_beside_the_design_as_written() {
 
 #[test]
 fn demo_claim_warnings_appear_exactly_where_the_shared_share_dominates() {
-    let report = demo_json(&[]);
+    let report = demo_with_joint_glm().json(&[]);
     let mut warned = 0;
     for run in report["runs"].as_array().unwrap() {
         for partition in run["partition"].as_array().unwrap() {
@@ -675,7 +669,7 @@ fn signal_option_partitions_each_region_from_the_command_line() {
 
 #[test]
 fn subjects_restricts_the_check_and_unknown_labels_are_errors() {
-    let report = demo_json(&["--subjects", "04,17"]);
+    let report = demo_with_joint_glm().json(&["--subjects", "04,17"]);
     let subjects: Vec<&str> = report["subjects"]
         .as_array()
         .unwrap()

@@ -137,11 +137,16 @@ fn written_trials_check_to_the_forecast_numbers() {
         let study = dir.path().join(folder).join("study.toml");
         let checked = check_file(&DiskFiles, &study, CheckOptions::default())
             .expect("the written study checks");
-        assert_eq!(checked.runs.len(), 10);
-        for name in ["delta_pe", "hybrid_pe", "cue"] {
+        assert_eq!(checked.runs.len(), 10 * spec.glms.len());
+        for (glm, name) in [
+            ("delta", "delta_pe"),
+            ("hybrid", "hybrid_pe"),
+            ("delta", "cue"),
+        ] {
             let vifs: Vec<Option<f64>> = checked
                 .runs
                 .iter()
+                .filter(|run| run.glm == glm)
                 .map(|run| {
                     let i = run
                         .regressors
@@ -156,10 +161,10 @@ fn written_trials_check_to_the_forecast_numbers() {
             let forecast_spread = &forecast.report.variants[v]
                 .regressors
                 .iter()
-                .find(|r| r.regressor == name)
+                .find(|r| r.glm == glm && r.regressor == name)
                 .unwrap()
                 .vif;
-            assert_eq!(&Spread::of(&vifs), forecast_spread, "{folder} {name}");
+            assert_eq!(&Spread::of(&vifs), forecast_spread, "{folder} {glm} {name}");
         }
     }
     let parameters =
@@ -290,23 +295,26 @@ weights = { kal = 1, dual = 3 }
     };
     let forecast = run_forecast(&spec, options, &|| {}).unwrap();
     let report = &forecast.report;
-    let names: Vec<&str> = report.variants[0]
+    let names: Vec<(&str, &str)> = report.variants[0]
         .regressors
         .iter()
-        .map(|r| r.regressor.as_str())
+        .map(|r| (r.glm.as_str(), r.regressor.as_str()))
         .collect();
-    // Defaults for the Kalman learner; cue quantities come before outcome ones.
+    // One GLM per learner by default; defaults for the Kalman learner; cue quantities
+    // come before outcome ones.
     assert_eq!(
         names,
         [
-            "cue",
-            "outcome",
-            "kal_value",
-            "kal_uncertainty",
-            "kal_pe",
-            "dual_value",
-            "dual_pe",
-            "dual_rate"
+            ("kal", "cue"),
+            ("kal", "outcome"),
+            ("kal", "kal_value"),
+            ("kal", "kal_uncertainty"),
+            ("kal", "kal_pe"),
+            ("dual", "cue"),
+            ("dual", "outcome"),
+            ("dual", "dual_value"),
+            ("dual", "dual_pe"),
+            ("dual", "dual_rate")
         ]
     );
     // Both learners generated someone, and each has a recovery row per fitted parameter

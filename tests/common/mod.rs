@@ -143,3 +143,21 @@ where
     assert_eq!(a.len(), b.len(), "{what}: the two lists differ in length");
     a.zip(b)
 }
+
+/// The demo study with one GLM holding both learners (the design every model shares),
+/// written beside a copy of nothing else: the trial table is the repository's.
+pub fn demo_with_joint_glm() -> StudyDir {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data");
+    let study = std::fs::read_to_string(demo.join("study.toml"))
+        .unwrap()
+        .replace(
+            "file = \"trials.csv\"",
+            &format!("file = {:?}", demo.join("trials.csv").display().to_string()),
+        );
+    let dir = StudyDir::new();
+    dir.file(
+        "study.toml",
+        &format!("{study}\n[[glm]]\nname = \"both learners\"\nmodels = [\"delta\", \"hybrid\"]\n"),
+    );
+    dir
+}

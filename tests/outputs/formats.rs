@@ -5,7 +5,7 @@ use std::path::Path;
 
 use serde::Deserialize;
 use tangle::check::{CheckOptions, check_file};
-use tangle::files::DiskFiles;
+use tangle::files::{DiskFiles, MemoryFiles};
 use tangle::render;
 use tangle::report::Report;
 
@@ -13,6 +13,19 @@ use tangle::report::Report;
 fn fixture() -> Report {
     let path = Path::new("tests/reference/design_fixture/study.toml");
     check_file(&DiskFiles, path, CheckOptions::default()).unwrap()
+}
+
+/// The fixture with one GLM holding both models: the design the reference values
+/// (tests/reference/design_fixture/expected.json) describe.
+fn joint_fixture() -> Report {
+    let folder = Path::new("tests/reference/design_fixture");
+    let study = std::fs::read_to_string(folder.join("study.toml")).unwrap()
+        + "[[glm]]\nname = \"both\"\nmodels = [\"a\", \"b\"]\n";
+    let trials = std::fs::read_to_string(folder.join("trials.csv")).unwrap();
+    let files = MemoryFiles::default()
+        .with(folder.join("joint.toml"), study)
+        .with(folder.join("trials.csv"), trials);
+    check_file(&files, &folder.join("joint.toml"), CheckOptions::default()).unwrap()
 }
 
 #[test]
@@ -125,7 +138,7 @@ struct Subject {
 
 #[test]
 fn json_reads_back_into_typed_structures() {
-    let text = render::json::render(&fixture());
+    let text = render::json::render(&joint_fixture());
     let output: Output = serde_json::from_str(&text).unwrap();
     assert_eq!(output.tool.name, "tangle");
     assert_eq!(output.tool.version, env!("CARGO_PKG_VERSION"));

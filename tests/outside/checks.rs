@@ -116,7 +116,7 @@ fn design_columns_match_an_independent_numpy_build() {
     let path = reference("design_fixture/study.toml");
     let study = parse_study(&path, &read_text(&DiskFiles, &path).unwrap()).unwrap();
     let (tr, runs) = read_runs(&DiskFiles, &study).unwrap();
-    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default());
+    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default()).unwrap();
     let design = build_design(&settings.design, &runs[0], None).unwrap();
     let names: Vec<&str> = design.regressors.iter().map(|r| r.name.as_str()).collect();
     let expected_names = strings(&expected["regressors"]);

@@ -135,7 +135,7 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
     fn design(values: &[(f64, f64, f64)]) -> Design {
         let study = parse_study(Path::new("s.toml"), STUDY).unwrap();
         let column = |model: &str, name: &str, pick: fn(&(f64, f64, f64)) -> f64| ModulatorValues {
-            model: model.into(),
+            model: Some(model.into()),
             column: name.into(),
             values: values.iter().map(|v| Some(pick(v))).collect(),
         };
@@ -158,7 +158,7 @@ modulators = [ { event = "outcome", column = "y" }, { event = "outcome", column 
                 ],
             }],
         };
-        let settings = RunSettings::of_study(&study, 2.0, AnalysisOptions::default());
+        let settings = RunSettings::of_study(&study, 2.0, AnalysisOptions::default()).unwrap();
         build_design(&settings.design, &run, None).unwrap()
     }
 

@@ -46,7 +46,7 @@ fn regressors(dir: &StudyDir) -> Vec<(String, Vec<f64>)> {
     let path = dir.path("study.toml");
     let study = parse_study(&path, &read_text(&DiskFiles, &path).unwrap()).unwrap();
     let (tr, runs) = read_runs(&DiskFiles, &study).unwrap();
-    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default());
+    let settings = RunSettings::of_study(&study, tr, AnalysisOptions::default()).unwrap();
     let design = build_design(&settings.design, &runs[0], None).unwrap();
     let names = design.regressors.iter().map(|r| r.name.clone());
     paired(names, design.sampled, "regressor names and columns").collect()

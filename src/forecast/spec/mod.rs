@@ -13,7 +13,7 @@ pub use prior::Prior;
 use std::path::PathBuf;
 
 use crate::forecast::learners::{LearnerKind, Quantity};
-use crate::study::Thresholds;
+use crate::study::{GlmSpec, NoiseModel, Thresholds};
 
 /// Participants simulated when neither the spec nor the command line says.
 pub const DEFAULT_PARTICIPANTS: usize = 100;
@@ -28,6 +28,11 @@ pub struct ForecastSpec {
     /// Value every option starts a run with, in the simulation and in every fit.
     pub initial_value: f64,
     pub design: DesignChoices,
+    /// How the scans' noise is modelled (`[noise]`, as in a study file).
+    pub noise: NoiseModel,
+    /// The GLMs the analysis will fit (`[[glm]]`, as in a study file; by default one
+    /// per learner).
+    pub glms: Vec<GlmSpec>,
     pub thresholds: Thresholds,
     pub learners: Vec<LearnerSpec>,
     /// Which learners generate behaviour, with their weights (summing to 1).

@@ -12,7 +12,9 @@ use super::*;
 use crate::Result;
 use crate::forecast::participant::{CUE, OUTCOME};
 use crate::study::schema::THRESHOLD_KEYS;
-use crate::study::{DEFAULT_HIGH_PASS, DEFAULT_MICROTIME, DEFAULT_REFERENCE, read_thresholds};
+use crate::study::{
+    DEFAULT_HIGH_PASS, DEFAULT_MICROTIME, DEFAULT_REFERENCE, read_glms, read_noise, read_thresholds,
+};
 use crate::toml_read::{Table, TomlReader, get, parse_integer, parse_toml};
 
 const TOP_LEVEL: &[&str] = &[
@@ -24,6 +26,8 @@ const TOP_LEVEL: &[&str] = &[
     "generate",
     "compare",
     "variant",
+    "glm",
+    "noise",
 ];
 const FORECAST_KEYS: &[&str] = &["name", "participants", "seed", "initial_value"];
 const DESIGN_KEYS: &[&str] = &["high_pass", "microtime", "reference", "hrf_derivative"];
@@ -62,6 +66,11 @@ fn read_spec(r: &mut TomlReader<'_>, root: &Table<'_>) -> Option<ForecastSpec> {
         None => Some(Default::default()),
     };
     let learners = learners(r, root);
+    let glms = learners.as_ref().and_then(|learners| {
+        let names: Vec<String> = learners.iter().map(|l| l.name.clone()).collect();
+        read_glms(r, root, &names)
+    });
+    let noise = read_noise(r, root);
     let generating = learners.as_ref().and_then(|l| generating(r, root, l));
     let (focus, rank_by) = compare(r, root, learners.as_deref().unwrap_or(&[]));
     let variants = variants(r, root, &dir);
@@ -77,6 +86,8 @@ fn read_spec(r: &mut TomlReader<'_>, root: &Table<'_>) -> Option<ForecastSpec> {
         seed: seed?,
         initial_value,
         design: design?,
+        noise: noise?,
+        glms: glms?,
         thresholds: thresholds?,
         learners: learners?,
         generating: generating?,

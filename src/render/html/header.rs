@@ -4,7 +4,7 @@
 use std::fmt::Write as _;
 
 use super::{esc, glyph};
-use crate::report::DIAGNOSTICS_SPACE;
+use crate::render::table::{glm_contents, noise};
 use crate::report::Report;
 use crate::screen::Status;
 
@@ -31,10 +31,29 @@ pub(super) fn header(report: &Report) -> String {
     let _ = writeln!(
         html,
         "<p class=\"space\"><strong>These are diagnostics of the filtered design.</strong> {}.</p>",
-        esc(DIAGNOSTICS_SPACE)
+        esc(&report.settings.diagnostics_space)
+    );
+    let glms: Vec<String> = report
+        .settings
+        .glms
+        .iter()
+        .map(|g| {
+            format!(
+                "<strong>{}</strong> ({})",
+                esc(&g.name),
+                esc(&glm_contents(g))
+            )
+        })
+        .collect();
+    let _ = writeln!(
+        html,
+        "<p class=\"space\">GLMs: {}. Noise: {}. A participant takes the worst status over their GLMs.</p>",
+        glms.join("; "),
+        esc(&noise(&report.settings))
     );
     html.push_str(
         "<nav><a href=\"#overview\">Cohort overview</a> <a href=\"#shared\">Own and shared variance</a> \
+         <a href=\"#separation\">Telling the models apart</a> \
          <a href=\"#correlations\">Correlations</a> <a href=\"#participants\">Participants</a> \
          <a href=\"#settings\">Settings</a> <a href=\"#methods\">Methods paragraph</a> \
          <a href=\"#cautions\">Cautions</a></nav>\n</header>\n",

@@ -17,6 +17,7 @@ mod overview;
 mod participant_tables;
 mod participants;
 mod prose;
+mod separation;
 mod settings;
 mod shared;
 
@@ -32,6 +33,7 @@ use header::header;
 use methods::methods;
 use overview::overview;
 use participants::participants;
+use separation::separation;
 use settings::settings;
 use shared::shared;
 
@@ -51,6 +53,7 @@ pub fn render(report: &Report) -> String {
     for section in [
         overview(report),
         shared(report),
+        separation(report),
         correlations(report),
         participants(report),
         settings(report),

@@ -87,7 +87,17 @@ fn participant_detail(summary: &SubjectSummary, runs: &[&RunReport]) -> String {
         badge(summary.status),
         number(summary.worst_vif),
     );
-    html.push_str(&vif_table(runs));
+    let mut glms: Vec<&str> = Vec::new();
+    for run in runs {
+        if !glms.contains(&run.glm.as_str()) {
+            glms.push(&run.glm);
+        }
+    }
+    for glm in glms {
+        let of_glm: Vec<&RunReport> = runs.iter().copied().filter(|r| r.glm == glm).collect();
+        let _ = writeln!(html, "<h4>GLM {}</h4>", esc(glm));
+        html.push_str(&vif_table(&of_glm));
+    }
     html.push_str("</div>\n<div>\n");
     html.push_str(&model_sets(runs));
     html.push_str(&entangled(runs));

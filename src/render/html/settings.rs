@@ -36,6 +36,8 @@ pub(super) fn settings(report: &Report) -> String {
         ("temporal derivatives", yes_no(s.hrf.derivative).to_string(), String::new()),
         ("modulators mean-centred", yes_no(s.centring).to_string(), String::new()),
         ("orthogonalisation", esc(&s.orthogonalisation), String::new()),
+        ("noise model", esc(&crate::render::table::noise(s)), if s.noise.ar1.is_some() { "common practice: ρ depends strongly on the TR (shorter TR, larger ρ); an assumed value, not one estimated from these data".to_string() } else { String::new() }),
+        ("GLMs", esc(&s.glms.iter().map(|g| format!("{}: {}", g.name, crate::render::table::glm_contents(g))).collect::<Vec<_>>().join("; ")), "each run is assessed in each GLM; separation is measured in the design with every model".to_string()),
         ("VIF caution", plain(t.vif_caution), practice(t.vif_caution, 5.0)),
         ("VIF severe", plain(t.vif_severe), practice(t.vif_severe, 10.0)),
         ("condition index", plain(t.condition_index), practice(t.condition_index, 30.0)),

@@ -97,6 +97,8 @@ pub(super) fn design_paragraph(report: &Report, layout: &Layout) -> String {
         sample_point(settings.reference)
     ));
 
+    sentences.push(glms_and_noise(report));
+
     let nuisance: Vec<usize> = report
         .runs
         .iter()
@@ -179,4 +181,32 @@ fn span(values: &[usize]) -> Option<(usize, usize)> {
     let low = values.iter().min()?;
     let high = values.iter().max()?;
     Some((*low, *high))
+}
+
+/// The GLMs each run was modelled in, and the noise model.
+fn glms_and_noise(report: &Report) -> String {
+    let settings = &report.settings;
+    let described: Vec<String> = settings
+        .glms
+        .iter()
+        .map(|g| {
+            let models = if g.models.is_empty() {
+                "the events alone".to_string()
+            } else {
+                format!("the modulators of {}", list(&g.models))
+            };
+            format!("\u{201c}{}\u{201d} ({models})", g.name)
+        })
+        .collect();
+    let glms = match described.len() {
+        1 => format!("Each run was modelled in one GLM, {}", described[0]),
+        n => format!("Each run was modelled in {n} GLMs, {}", list(&described)),
+    };
+    let noise = match settings.noise.ar1 {
+        Some(rho) => format!(
+            "; the noise was modelled as first-order autoregressive with coefficient {rho}, and every column (the constant and cosines included) was prewhitened (Prais–Winsten) so that every diagnostic describes the generalized least-squares fit"
+        ),
+        None => "; the noise was treated as white (ordinary least squares)".to_string(),
+    };
+    format!("{glms}, each holding every event's regressors and any nuisance regressors{noise}.")
 }

@@ -21,14 +21,31 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
         ("event-regressor", layout.events.iter().collect())
     };
     if !regressors.is_empty() && !runs.is_empty() {
-        let items: Vec<String> = regressors
-            .iter()
-            .map(|named| vif_summary(report, named))
-            .collect();
-        sentences.push(format!(
-            "Over runs, {what} VIFs had median (range): {}.",
-            items.join("; ")
-        ));
+        let glms = &report.settings.glms;
+        for glm in glms {
+            let items: Vec<String> = regressors
+                .iter()
+                .filter(|named| {
+                    report
+                        .regressor_vifs
+                        .iter()
+                        .any(|v| v.glm == glm.name && v.regressor == named.name)
+                })
+                .map(|named| vif_summary(report, &glm.name, named))
+                .collect();
+            if items.is_empty() {
+                continue;
+            }
+            let place = if glms.len() > 1 {
+                format!("In the \u{201c}{}\u{201d} GLM, over runs", glm.name)
+            } else {
+                "Over runs".to_string()
+            };
+            sentences.push(format!(
+                "{place}, {what} VIFs had median (range): {}.",
+                items.join("; ")
+            ));
+        }
     }
 
     let cohort = &report.cohort;
@@ -49,6 +66,9 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
 
     if let Some(shares) = share_sentence(report, layout) {
         sentences.push(shares);
+    }
+    if let Some(separation) = separation_sentence(report, layout) {
+        sentences.push(separation);
     }
 
     let exact = participants_with(report, |run| {
@@ -78,11 +98,11 @@ pub(super) fn results_paragraph(report: &Report, layout: &Layout) -> String {
 }
 
 /// "label median (min–max)", with the runs in which the VIF was undefined.
-fn vif_summary(report: &Report, named: &Named) -> String {
+fn vif_summary(report: &Report, glm: &str, named: &Named) -> String {
     let vifs = report
         .regressor_vifs
         .iter()
-        .find(|v| v.regressor == named.name);
+        .find(|v| v.glm == glm && v.regressor == named.name);
     let undefined = vifs.map_or(0, |v| v.undefined);
     let undefined_note = |all: bool| {
         if all {
@@ -162,7 +182,7 @@ fn share_sentence(report: &Report, layout: &Layout) -> Option<String> {
         return None;
     }
     Some(format!(
-        "In the commonality analysis (each participant's mean over runs; median and range over participants), {}.",
+        "In the commonality analysis of the design with every model (each participant's mean over runs; median and range over participants), {}.",
         items.join("; ")
     ))
 }
@@ -175,4 +195,37 @@ fn participants_with(report: &Report, test: impl Fn(&RunReport) -> bool) -> usiz
         }
     }
     subjects.len()
+}
+
+/// The separation results: per modulator and other model, the median (range) over
+/// participants of the partial R².
+fn separation_sentence(report: &Report, layout: &Layout) -> Option<String> {
+    let items: Vec<String> = report
+        .separation_summary
+        .iter()
+        .filter_map(|s| {
+            let (Some(median), Some(low), Some(high)) =
+                (s.partial_r2.median, s.partial_r2.min, s.partial_r2.max)
+            else {
+                return None;
+            };
+            let label = layout
+                .modulators()
+                .find(|(_, m)| m.name == s.regressor)
+                .map_or(s.regressor.as_str(), |(_, m)| m.label.as_str());
+            Some(format!(
+                "{} on {}'s modulators {} ({})",
+                label,
+                s.models[1],
+                percent(median),
+                percent_range(low, high)
+            ))
+        })
+        .collect();
+    (!items.is_empty()).then(|| {
+        format!(
+            "Partial R² of each modulator on the other model's modulators (participant means over runs; median and range over participants): {}.",
+            items.join("; ")
+        )
+    })
 }

@@ -17,12 +17,14 @@ mod heatmap;
 mod legend;
 mod marks;
 pub mod palette;
+mod separation;
 mod strip;
 pub mod variants;
 
 pub use bars::{ShareBar, SharePanel, model_pairs, share_bars, share_panels};
 pub use heatmap::{correlation_map, diverging, worst_run};
 pub use marks::Mark;
+pub use separation::{SeparationRow, separation_rows, separation_strip};
 pub use strip::{Dot, StripRow, Undefined, VifStrip, vif_strip, vif_strip_data};
 
 use std::panic::{AssertUnwindSafe, catch_unwind};

@@ -47,14 +47,16 @@ pub struct VifStrip {
 /// dot for the defined runs would understate the problem); they are listed instead.
 pub fn vif_strip_data(report: &Report) -> VifStrip {
     let mut strip = VifStrip::default();
+    let several_glms = report.settings.glms.len() > 1;
     for cell in &report.participant_vifs {
-        if strip
-            .rows
-            .last()
-            .is_none_or(|row| row.regressor != cell.regressor)
-        {
+        let label = if several_glms {
+            format!("{} · {}", cell.glm, cell.regressor)
+        } else {
+            cell.regressor.clone()
+        };
+        if strip.rows.last().is_none_or(|row| row.regressor != label) {
             strip.rows.push(StripRow {
-                regressor: cell.regressor.clone(),
+                regressor: label,
                 dots: Vec::new(),
                 undefined: Vec::new(),
             });
