@@ -84,9 +84,7 @@ pub fn summarise(digests: &[RunDigest]) -> (Vec<SeparationSummary>, Vec<Particip
     let mut per_participant = Vec::new();
     for key in order {
         let participants = sums.remove(&key).unwrap_or_default();
-        let mean = |p: &Sums, slot: usize| {
-            (p.2[slot] > 0).then(|| p.1[slot] / p.2[slot] as f64)
-        };
+        let mean = |p: &Sums, slot: usize| (p.2[slot] > 0).then(|| p.1[slot] / p.2[slot] as f64);
         let means = |slot: usize| -> Vec<f64> {
             participants.iter().filter_map(|p| mean(p, slot)).collect()
         };

@@ -16,18 +16,21 @@ use tangle::settings::{AnalysisOptions, RunSettings};
 use tangle::study::parse_study;
 use tangle::trials::Table;
 
-fn reference(name: &str) -> PathBuf {
+/// A GLM holding both of the fixture's models: the design its references describe.
+pub const JOINT: &str = "[[glm]]\nname = \"both\"\nmodels = [\"a\", \"b\"]\n";
+
+pub fn reference(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("tests/reference")
         .join(name)
 }
 
-fn json(name: &str) -> Value {
+pub fn json(name: &str) -> Value {
     let text = std::fs::read_to_string(reference(name)).unwrap();
     serde_json::from_str(&text).unwrap()
 }
 
-fn numbers(value: &Value) -> Vec<f64> {
+pub fn numbers(value: &Value) -> Vec<f64> {
     value
         .as_array()
         .unwrap()
@@ -36,7 +39,7 @@ fn numbers(value: &Value) -> Vec<f64> {
         .collect()
 }
 
-fn strings(value: &Value) -> Vec<&str> {
+pub fn strings(value: &Value) -> Vec<&str> {
     value
         .as_array()
         .unwrap()
@@ -148,7 +151,10 @@ fn every_demo_vif_matches_numpy_and_statsmodels() {
     // demo-data/ rebuilt with pandas + numpy (dense convolution) and VIFs from statsmodels'
     // variance_inflation_factor (tests/reference/make_references.py, demo_references).
     let expected = json("demo_vif.json");
-    let report = tangle::demo::check_demo(Default::default()).unwrap();
+    // The reference's runs hold every model in one design: the demo with that GLM.
+    let dir = crate::common::demo_with_joint_glm();
+    let report =
+        tangle::check::check_file(&DiskFiles, &dir.path("study.toml"), Default::default()).unwrap();
     let runs = expected["runs"].as_array().unwrap();
     assert_eq!(report.runs.len(), runs.len());
     for (run, want) in paired(&report.runs, runs, "demo runs") {
@@ -425,8 +431,7 @@ fn commonality_components_match_statsmodels_fits_of_every_subset() {
 fn the_design_partition_matches_statsmodels_on_the_fixture() {
     // a:a_pe of the fixture design on groups a (its fellow modulator), b, task.
     let expected = &json("commonality.json")["design_fixture"];
-    let path = reference("design_fixture/study.toml");
-    let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
+    let report = crate::glms::fixture_with(JOINT);
     let run = &report.runs[0];
     let partition = run
         .partition
@@ -453,8 +458,7 @@ fn the_design_partition_matches_statsmodels_on_the_fixture() {
 fn model_overlap_matches_numpy_canonical_correlations() {
     // numpy QR + SVD after projecting out the task columns; shares from statsmodels OLS R².
     let expected = &json("commonality.json")["design_fixture_overlap"];
-    let path = reference("design_fixture/study.toml");
-    let report = tangle::check::check_file(&DiskFiles, &path, Default::default()).unwrap();
+    let report = crate::glms::fixture_with(JOINT);
     let overlap = &report.runs[0].model_overlap[0];
     assert_eq!(overlap.models, ["a", "b"]);
     for (got, want) in paired(

@@ -5,6 +5,7 @@
 mod common;
 
 mod checks;
+mod glms;
 
 /// The length guard every check above relies on: an empty or short result is a failure.
 #[test]

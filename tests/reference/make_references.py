@@ -45,6 +45,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import scipy
+import scipy.linalg
 import scipy.optimize
 import scipy.special
 import scipy.stats
@@ -662,6 +663,81 @@ def commonality_references(out: Path) -> list[str]:
 
 # --------------------------------------------------------------------------- demo study
 
+AR1_COEFFICIENTS = [0.3, 0.6]
+
+
+def glm_references(out: Path) -> list[str]:
+    """The design fixture seen as its GLMs (one per model), under AR(1) noise, and the
+    models' separation, each computed by a route of its own."""
+    trials = read_trials(out / "design_fixture" / "trials.csv")
+    design = build_design(trials)
+    names = design["names"]
+    x = np.asarray(design["sampled"]).T                      # scans x regressors
+    filtered = np.asarray(design["filtered"]).T
+    scans, tr, high_pass = FIXTURE["scans"], FIXTURE["tr"], FIXTURE["high_pass"]
+    n_cos = math.floor(2 * scans * tr / high_pass)
+    n = np.arange(scans)
+    drift = np.column_stack([np.ones(scans)] +
+                            [np.cos(np.pi * k * (2 * n + 1) / (2 * scans)) for k in range(1, n_cos + 1)])
+    glms = []
+    for model in ("a", "b"):
+        keep = [j for j, name in enumerate(names) if ":" not in name or name.startswith(model + ":")]
+        part = filtered[:, keep]
+        glms.append({"glm": model, "regressors": [names[j] for j in keep],
+                     "vif": floats([variance_inflation_factor(part, j, standardize=False)
+                                    for j in range(part.shape[1])])})
+    ar1 = []
+    for rho in AR1_COEFFICIENTS:
+        sigma = scipy.linalg.toeplitz(rho ** np.arange(scans))
+        full = np.column_stack([x, drift])
+        gls = sm.GLS(np.zeros(scans), full, sigma=sigma)
+        w = gls.cholsigmainv
+        xw, dw = w @ x, w @ drift
+        fw = xw - dw @ np.linalg.lstsq(dw, xw, rcond=None)[0]
+        vif = [variance_inflation_factor(fw, j, standardize=False) for j in range(fw.shape[1])]
+        # Efficiency of each regressor's own contrast in the GLS metric, from the full
+        # design (drift included) and the inverse of sigma directly: 1/[(X'S^-1X)^-1]_jj.
+        information = full.T @ np.linalg.inv(sigma) @ full
+        efficiency = 1.0 / np.diag(np.linalg.inv(information))[:x.shape[1]]
+        check(max_rel_err(vif, [fw[:, j] @ fw[:, j] / e for j, e in enumerate(efficiency)]) < 1e-8,
+              "AR(1): efficiency and VIF disagree through ||x||^2/VIF")
+        ar1.append({"ar1": rho, "vif": floats(vif), "efficiency": floats(efficiency)})
+    # Separation: partial R2 of each modulator of model A on model B's modulators, given
+    # the task columns and A's other modulators (statsmodels OLS R2, with a constant).
+    col = dict(zip(names, filtered.T))
+    task = [col["cue"], col["outcome"]]
+    def partial_r2(target, controls, others):
+        r2_c = ols_r2(col[target], np.column_stack(controls))
+        r2_cb = ols_r2(col[target], np.column_stack(controls + others))
+        return (r2_cb - r2_c) / (1 - r2_c)
+    separation = [
+        {"models": ["a", "b"], "regressor": "a:a_value",
+         "partial_r2": partial_r2("a:a_value", task + [col["a:a_pe"]], [col["b:b_pe"]])},
+        {"models": ["a", "b"], "regressor": "a:a_pe",
+         "partial_r2": partial_r2("a:a_pe", task + [col["a:a_value"]], [col["b:b_pe"]])},
+        {"models": ["b", "a"], "regressor": "b:b_pe",
+         "partial_r2": partial_r2("b:b_pe", task, [col["a:a_value"], col["a:a_pe"]])},
+    ]
+    ver = versions()
+    write_json(out / "glms.json", {
+        "source": (f"the design fixture's numpy build (design_fixture/expected.json). glms: each model's "
+                   f"GLM (the events' columns and that model's), VIFs by statsmodels "
+                   f"{ver['statsmodels']} variance_inflation_factor of the filtered columns. ar1: "
+                   "statsmodels GLS with sigma = toeplitz(rho^k) (the AR(1) correlation matrix); its "
+                   "whitening matrix cholsigmainv applied to the sampled regressors and to the constant "
+                   "and cosines, the whitened drift projected out (numpy lstsq), VIFs by "
+                   "variance_inflation_factor; efficiency 1/[(X'S^-1X)^-1]_jj of the full design "
+                   "(regressors and drift) with numpy's inverse of sigma. separation: partial R2 = "
+                   "(R2(j ~ C+B) - R2(j ~ C)) / (1 - R2(j ~ C)), statsmodels OLS R2 with a constant, "
+                   "C = task columns and the modulator's own model's other modulators"),
+        "regressors": names,
+        "glms": glms,
+        "ar1": ar1,
+        "separation": separation,
+    })
+    return ["glms.json"]
+
+
 def demo_references(out: Path) -> list[str]:
     """VIFs of every run of demo-data/, recomputed from its files with pandas, numpy and
     statsmodels: dense microtime grid, np.convolve, lstsq projection on the drift basis,
@@ -696,7 +772,9 @@ def demo_references(out: Path) -> list[str]:
     def number(cell):
         return float("nan") if cell in ("", "n/a") else float(cell)
 
-    names, runs = [], []
+    names, runs, ar1_first_run = [], [], []
+    per_glm = {m["name"]: {"glm": m["name"], "models": [m["name"]], "regressors": [], "runs": []}
+               for m in study["model"]}
     for (subject, run), rows in table.groupby(["subject", "run"], sort=False):
         columns, names = [], []
         for event, onset_column in events.items():
@@ -713,6 +791,28 @@ def demo_references(out: Path) -> list[str]:
         vifs = [variance_inflation_factor(filtered, j, standardize=False)
                 for j in range(filtered.shape[1])]
         runs.append({"subject": subject, "run": run, "vif": floats(vifs)})
+        # One GLM per model (the study's default): the events' columns and the model's.
+        for model in study["model"]:
+            keep = [j for j, name in enumerate(names)
+                    if ":" not in name or name.startswith(model["name"] + ":")]
+            part = filtered[:, keep]
+            per_glm[model["name"]]["regressors"] = [names[j] for j in keep]
+            per_glm[model["name"]]["runs"].append({
+                "subject": subject, "run": run,
+                "vif": floats([variance_inflation_factor(part, j, standardize=False)
+                               for j in range(part.shape[1])]),
+            })
+        if (subject, run) == ("01", "1"):
+            # AR(1) noise: statsmodels GLS with sigma the AR(1) correlation matrix; its
+            # whitening (cholsigmainv, W'W = inverse of sigma) applied to the regressors and
+            # to the constant and cosines, the whitened drift projected out, then VIFs.
+            for rho in AR1_COEFFICIENTS:
+                sigma = scipy.linalg.toeplitz(rho ** np.arange(scans))
+                w = sm.GLS(np.zeros(scans), np.column_stack([design, drift]), sigma=sigma).cholsigmainv
+                xw, dw = w @ design, w @ drift
+                fw = xw - dw @ np.linalg.lstsq(dw, xw, rcond=None)[0]
+                ar1_first_run.append({"ar1": rho, "vif": floats(
+                    [variance_inflation_factor(fw, j, standardize=False) for j in range(fw.shape[1])])})
     write_json(out / "demo_vif.json", {
         "source": f"demo-data/ rebuilt with pandas {pd.__version__} and numpy {np.__version__} "
                   f"(dense convolution), VIFs by statsmodels {statsmodels.__version__} "
@@ -720,6 +820,15 @@ def demo_references(out: Path) -> list[str]:
                   "columns are centred, so the uncentred R2 it uses equals the centred one",
         "regressors": names,
         "runs": runs,
+        "glms_source": "the same filtered columns, those of each GLM taken (the events' and one "
+                       "model's modulators: the study's default of one GLM per model), VIFs by "
+                       "variance_inflation_factor again",
+        "glms": list(per_glm.values()),
+        "ar1_source": f"subject 01 run 1, every model in one design, AR(1) noise: statsmodels "
+                      f"{statsmodels.__version__} GLS(sigma = toeplitz(rho^k)).cholsigmainv applied to "
+                      "the regressors and to the constant and cosines, the whitened drift projected "
+                      "out by numpy lstsq, VIFs by variance_inflation_factor",
+        "ar1_first_run": ar1_first_run,
     })
     return ["demo_vif.json"]
 
@@ -971,6 +1080,7 @@ def generate(out: Path) -> list[str]:
     files += hrf_references(out)
     files += fixture_references(out)
     files += commonality_references(out)
+    files += glm_references(out)
     files += demo_references(out)
     files += choice_references(out)
     files += computed_references(out)
