@@ -17,6 +17,9 @@ modulators = [ { event = "outcome", column = "x" } ]
 [[model]]
 name = "b"
 modulators = [ { event = "outcome", column = "y" } ]
+[[glm]]
+name = "both"
+models = ["a", "b"]
 "#;
 
 /// A one-run study whose two models' modulators correlate about 0.7 across trials.
