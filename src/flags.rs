@@ -35,6 +35,7 @@ impl Severity {
 pub enum FlagCode {
     // Reading the run.
     SameOnset,
+    UnusedDurationColumn,
     TrDisagreesWithData,
     ScansDisagreeWithData,
     SliceTimingReference,
@@ -64,6 +65,7 @@ impl FlagCode {
     pub fn as_str(self) -> &'static str {
         match self {
             FlagCode::SameOnset => "same_onset",
+            FlagCode::UnusedDurationColumn => "unused_duration_column",
             FlagCode::TrDisagreesWithData => "tr_disagrees_with_data",
             FlagCode::ScansDisagreeWithData => "scans_disagree_with_data",
             FlagCode::SliceTimingReference => "slice_timing_reference",

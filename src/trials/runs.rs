@@ -110,6 +110,8 @@ pub struct RunCollector<'s> {
     index_of: HashMap<(String, String), Option<usize>>,
     /// A fingerprint and the line of every row that holds an onset, to catch rows pasted twice.
     fingerprints: Vec<(u128, usize)>,
+    /// Notes about the table as a whole, given to every run.
+    notes: Vec<Flag>,
     problems: Problems,
 }
 
@@ -186,6 +188,7 @@ impl<'s> RunCollector<'s> {
             return Err(Error::Internal("a missing column was not reported".into()));
         };
         Ok(RunCollector {
+            notes: unused_duration_note(study, table).into_iter().collect(),
             study,
             tr,
             scans,
@@ -264,6 +267,7 @@ impl<'s> RunCollector<'s> {
             if let Some(previous) = self.runs.last() {
                 run.reserve_like(previous);
             }
+            run.flags.extend(self.notes.iter().cloned());
             self.runs.push(run);
             self.runs.len() - 1
         });
@@ -293,6 +297,40 @@ impl<'s> RunCollector<'s> {
         }
         self.problems.finish(self.runs)
     }
+}
+
+/// The column a long-form table usually holds each row's duration in.
+const DURATION_COLUMN: &str = "duration";
+
+/// A note when the table has a `duration` column that no event takes its durations
+/// from while some long-form event has a fixed duration (0 s unless the study says
+/// otherwise): the durations written in the table are then not modelled.
+fn unused_duration_note(study: &Study, table: &Table) -> Option<Flag> {
+    if !table.headers.iter().any(|h| h == DURATION_COLUMN) {
+        return None;
+    }
+    let used = study
+        .events
+        .iter()
+        .any(|e| matches!(&e.duration, Duration::Column(c) if c == DURATION_COLUMN));
+    let fixed: Vec<String> = study
+        .events
+        .iter()
+        .filter(|e| e.selector.is_some() && matches!(e.duration, Duration::Seconds(_)))
+        .map(|e| e.name.clone())
+        .collect();
+    (!used && !fixed.is_empty()).then(|| {
+        Flag::new(
+            Severity::Note,
+            FlagCode::UnusedDurationColumn,
+            fixed.clone(),
+            format!(
+                "the trial table has a \"{DURATION_COLUMN}\" column, but {} {} a fixed duration from the study file; to model the durations the table gives, write duration = \"{DURATION_COLUMN}\" under [[event]]",
+                fixed.join(", "),
+                if fixed.len() == 1 { "takes" } else { "take" }
+            ),
+        )
+    })
 }
 
 /// A caution where two trials of one event start at the same time: their regressors add

@@ -9,4 +9,5 @@ mod catalogue;
 mod cli;
 mod errors;
 mod forecast;
+mod glms;
 mod shards;
