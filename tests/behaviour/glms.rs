@@ -105,7 +105,7 @@ fn one_glm_per_model_by_default_each_with_the_task_modulator() {
         .unwrap();
     assert!(a_on_b > 0.2 && a_on_b < 1.0, "{a_on_b}");
     assert_eq!(separations[0]["modulators"][0]["corresponding"], "b:y");
-    assert_eq!(report["subjects"][0]["worst_glm"].as_str().is_some(), true);
+    assert!(report["subjects"][0]["worst_glm"].as_str().is_some());
 }
 
 #[test]
