@@ -95,6 +95,7 @@ fn variant_block(v: &VariantForecast) -> String {
         v.name, v.runs_checked, v.task.summary
     );
     let mut table = new_table(&[
+        "GLM",
         "regressor",
         "VIF median",
         "10–90%",
@@ -111,6 +112,7 @@ fn variant_block(v: &VariantForecast) -> String {
             None => ["—".to_string(), "—".to_string()],
         };
         table.add_row(vec![
+            m.glm.clone(),
             m.regressor.clone(),
             vif_median,
             vif_range,
@@ -121,9 +123,10 @@ fn variant_block(v: &VariantForecast) -> String {
             m.vif.undefined.to_string(),
         ]);
     }
-    align_numbers(&mut table, &[1, 2, 3, 4, 5, 6, 7]);
+    align_numbers(&mut table, &[2, 3, 4, 5, 6, 7, 8]);
     text.push_str(&format!("{table}\n"));
     let mut sets = new_table(&[
+        "GLM",
         "learner",
         "GVIF median",
         "10–90%",
@@ -133,9 +136,9 @@ fn variant_block(v: &VariantForecast) -> String {
     for s in &v.model_sets {
         let [g, gr] = spread_cells(&s.gvif, ratio);
         let [sc, scr] = spread_cells(&s.gvif_scaled, ratio);
-        sets.add_row(vec![s.learner.clone(), g, gr, sc, scr]);
+        sets.add_row(vec![s.glm.clone(), s.learner.clone(), g, gr, sc, scr]);
     }
-    align_numbers(&mut sets, &[1, 2, 3, 4]);
+    align_numbers(&mut sets, &[2, 3, 4, 5]);
     text.push_str(&format!("{sets}\n"));
     if !v.recovery.is_empty() {
         let mut recovery = new_table(&[

@@ -94,6 +94,7 @@ fn regressors(report: &ForecastReport) -> TsvTable {
         for m in &v.regressors {
             let mut row = vec![
                 v.name.clone(),
+                m.glm.clone(),
                 m.learner.clone().unwrap_or_else(|| "n/a".into()),
                 m.regressor.clone(),
             ];
@@ -110,6 +111,7 @@ fn regressors(report: &ForecastReport) -> TsvTable {
     plain_table(
         &[
             "variant",
+            "glm",
             "learner",
             "modulator",
             "vif_median",
@@ -131,7 +133,7 @@ fn model_sets(report: &ForecastReport) -> TsvTable {
     let mut rows = Vec::new();
     for v in &report.variants {
         for s in &v.model_sets {
-            let mut row = vec![v.name.clone(), s.learner.clone()];
+            let mut row = vec![v.name.clone(), s.glm.clone(), s.learner.clone()];
             row.extend(spread(&s.gvif));
             row.extend(spread(&s.gvif_scaled).into_iter().take(3));
             rows.push(row);
@@ -140,6 +142,7 @@ fn model_sets(report: &ForecastReport) -> TsvTable {
     plain_table(
         &[
             "variant",
+            "glm",
             "learner",
             "gvif_median",
             "gvif_p10",

@@ -86,16 +86,41 @@ impl VariantVifs {
 
 /// The figure's data, variants in ranking order (the order the reader decides in).
 pub fn variant_vifs_data(report: &ForecastReport) -> VariantVifs {
-    let regressors = report.forecast.focus.clone();
+    // Every GLM that holds a focus regressor (as the first variant lists them).
+    let keys: Vec<(String, String)> = report
+        .variants
+        .first()
+        .map(|v| {
+            v.regressors
+                .iter()
+                .filter(|r| report.forecast.focus.contains(&r.regressor))
+                .map(|r| (r.glm.clone(), r.regressor.clone()))
+                .collect()
+        })
+        .unwrap_or_default();
+    let several_glms = keys.iter().any(|k| k.0 != keys[0].0);
+    let regressors = keys
+        .iter()
+        .map(|(glm, name)| {
+            if several_glms {
+                format!("{glm} · {name}")
+            } else {
+                name.clone()
+            }
+        })
+        .collect();
     let rows = report
         .ranking
         .iter()
         .filter_map(|entry| {
             let variant = report.variants.iter().find(|v| v.name == entry.variant)?;
-            let whiskers = regressors
+            let whiskers = keys
                 .iter()
-                .map(|name| {
-                    let found = variant.regressors.iter().find(|r| &r.regressor == name);
+                .map(|(glm, name)| {
+                    let found = variant
+                        .regressors
+                        .iter()
+                        .find(|r| &r.glm == glm && &r.regressor == name);
                     found.map(|r| Whisker::of(&r.vif))
                 })
                 .collect();

@@ -100,7 +100,7 @@ fn regressor_table(report: &ForecastReport, v: &VariantForecast) -> String {
     let thresholds = &report.forecast.thresholds;
     let mut html = String::from(
         "<table class=\"regressors\">\n<caption>Per regressor, over the simulated runs: the VIF's median and 10–90% range (○ below caution, ▲ caution, ■ severe, by the median), the share of runs at or above each threshold, and the share of the regressor's variance held jointly with other learners' modulators. An undefined VIF (exact dependency) counts as above every threshold; — : not computed (onset regressors have no partition).</caption>\n\
-         <thead><tr><th>regressor</th><th>learner</th><th class=\"num\">VIF median</th><th class=\"num\">10–90%</th><th class=\"num\">P(caution or worse)</th><th class=\"num\">P(severe)</th><th class=\"num\">shared with other learners, median</th><th class=\"num\">10–90%</th><th class=\"num\">runs with undefined VIF</th></tr></thead>\n<tbody>\n",
+         <thead><tr><th>GLM</th><th>regressor</th><th>learner</th><th class=\"num\">VIF median</th><th class=\"num\">10–90%</th><th class=\"num\">P(caution or worse)</th><th class=\"num\">P(severe)</th><th class=\"num\">shared with other learners, median</th><th class=\"num\">10–90%</th><th class=\"num\">runs with undefined VIF</th></tr></thead>\n<tbody>\n",
     );
     for r in &v.regressors {
         let [median, range] = spread_cells(&r.vif, ratio_cell);
@@ -115,7 +115,8 @@ fn regressor_table(report: &ForecastReport, v: &VariantForecast) -> String {
         };
         let _ = writeln!(
             html,
-            "<tr><th scope=\"row\"><code>{}</code></th><td>{}</td><td class=\"num st-{}\">{median} <span aria-hidden=\"true\">{}</span></td><td class=\"num range\">{range}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{shared}</td><td class=\"num range\">{shared_range}</td><td class=\"num\">{} of {}</td></tr>",
+            "<tr><td>{}</td><th scope=\"row\"><code>{}</code></th><td>{}</td><td class=\"num st-{}\">{median} <span aria-hidden=\"true\">{}</span></td><td class=\"num range\">{range}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{shared}</td><td class=\"num range\">{shared_range}</td><td class=\"num\">{} of {}</td></tr>",
+            esc(&r.glm),
             esc(&r.regressor),
             r.learner
                 .as_deref()
@@ -138,14 +139,15 @@ fn model_set_table(v: &VariantForecast) -> String {
     }
     let mut html = String::from(
         "<table class=\"sets\">\n<caption>Each learner's modulators as one set: generalised VIF over the simulated runs, plain and scaled (GVIF^(1/(2·df)), comparable across set sizes)</caption>\n\
-         <thead><tr><th>learner</th><th class=\"num\">GVIF median</th><th class=\"num\">10–90%</th><th class=\"num\">scaled median</th><th class=\"num\">10–90%</th><th class=\"num\">runs with undefined GVIF</th></tr></thead>\n<tbody>\n",
+         <thead><tr><th>GLM</th><th>learner</th><th class=\"num\">GVIF median</th><th class=\"num\">10–90%</th><th class=\"num\">scaled median</th><th class=\"num\">10–90%</th><th class=\"num\">runs with undefined GVIF</th></tr></thead>\n<tbody>\n",
     );
     for s in &v.model_sets {
         let [g, gr] = spread_cells(&s.gvif, ratio_cell);
         let [sc, scr] = spread_cells(&s.gvif_scaled, ratio_cell);
         let _ = writeln!(
             html,
-            "<tr><th scope=\"row\">{}</th><td class=\"num\">{g}</td><td class=\"num range\">{gr}</td><td class=\"num\">{sc}</td><td class=\"num range\">{scr}</td><td class=\"num\">{} of {}</td></tr>",
+            "<tr><td>{}</td><th scope=\"row\">{}</th><td class=\"num\">{g}</td><td class=\"num range\">{gr}</td><td class=\"num\">{sc}</td><td class=\"num range\">{scr}</td><td class=\"num\">{} of {}</td></tr>",
+            esc(&s.glm),
             esc(&s.learner),
             s.gvif.undefined,
             s.gvif.count
