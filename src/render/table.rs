@@ -4,7 +4,7 @@
 use crate::flags::FlagCode;
 use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyle};
 
-use super::numbers::{percent_tenths, ratio};
+use super::numbers::{percent_tenths, prose_percent, ratio};
 use crate::report::Report;
 use crate::report::RunReport;
 
@@ -121,7 +121,7 @@ fn separation_tables(report: &Report) -> String {
     ]);
     for s in &report.separation_summary {
         let range = |r: &crate::cohort::Range| match (r.min, r.max) {
-            (Some(low), Some(high)) => format!("{}–{}", percent_tenths(low), percent_tenths(high)),
+            (Some(low), Some(high)) => format!("{}–{}", prose_percent(low), prose_percent(high)),
             _ => "undefined".to_string(),
         };
         summary.add_row(vec![
@@ -129,14 +129,14 @@ fn separation_tables(report: &Report) -> String {
             s.models[1].clone(),
             s.partial_r2
                 .median
-                .map_or("undefined".into(), percent_tenths),
+                .map_or("undefined".into(), prose_percent),
             range(&s.partial_r2),
             s.trial_correlation
                 .median
-                .map_or("undefined".into(), |r| format!("{r:.2}")),
+                .map_or("—".into(), |r| format!("{r:.2}")),
             match (s.trial_correlation.min, s.trial_correlation.max) {
                 (Some(low), Some(high)) => format!("{low:.2} to {high:.2}"),
-                _ => "undefined".to_string(),
+                _ => "—".to_string(),
             },
             s.participants.to_string(),
         ]);
@@ -163,7 +163,7 @@ fn separation_tables(report: &Report) -> String {
                 entry.run.clone(),
                 m.regressor.clone(),
                 entry.separation.models[1].clone(),
-                m.partial_r2.map_or("undefined".into(), percent_tenths),
+                m.partial_r2.map_or("undefined".into(), prose_percent),
                 m.trial_correlation
                     .map_or("n/a".into(), |r| format!("{r:.2}")),
                 canonical.join(", "),

@@ -19,8 +19,8 @@ from pathlib import Path
 
 PAGES = {
     "demo-report": (["demo", "--format", "html"],
-                    ["overview", "shared", "correlations", "participants", "settings", "methods",
-                     "cautions"], 3),
+                    ["overview", "shared", "separation", "correlations", "participants", "settings",
+                     "methods", "cautions"], 4),
     "demo-forecast": (["forecast", "demo-data/forecast.toml", "--participants", "40", "--quiet",
                        "--format", "html"],
                       ["setup", "ranking", "variant-1", "variant-5", "cautions"], 2),

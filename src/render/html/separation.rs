@@ -4,6 +4,7 @@
 use std::fmt::Write as _;
 
 use super::{esc, figure, section};
+use crate::render::numbers::prose_percent;
 use crate::render::plots;
 use crate::render::table::SEPARATION_NOTE;
 use crate::report::Report;
@@ -28,20 +29,28 @@ pub(super) fn separation(report: &Report) -> String {
          <th class=\"num\">trial r, median</th><th class=\"num\">range</th>\
          <th class=\"num\">participants</th></tr></thead>\n<tbody>\n",
     );
-    let percent = |v: Option<f64>| v.map_or("undefined".to_string(), super::percent);
-    let r = |v: Option<f64>| v.map_or("undefined".to_string(), |v| format!("{v:.2}"));
+    // Shares near 0 and 100% keep their digits (99.99% is not all).
+    let percent = |v: Option<f64>| v.map_or("undefined".to_string(), prose_percent);
+    let range =
+        |low: Option<f64>, high: Option<f64>, show: &dyn Fn(f64) -> String, join: &str| match (
+            low, high,
+        ) {
+            (Some(low), Some(high)) => format!("{}{join}{}", show(low), show(high)),
+            _ => "—".to_string(),
+        };
+    let r = |v: f64| format!("{v:.2}");
     for s in &report.separation_summary {
         let _ = writeln!(
             body,
-            "<tr><th scope=\"row\">{}</th><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}–{}</td><td class=\"num\">{}</td><td class=\"num\">{} to {}</td><td class=\"num\">{}</td></tr>",
+            "<tr><th scope=\"row\">{}</th><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             esc(&s.regressor),
             esc(&s.models[1]),
             percent(s.partial_r2.median),
-            percent(s.partial_r2.min),
-            percent(s.partial_r2.max),
-            r(s.trial_correlation.median),
-            r(s.trial_correlation.min),
-            r(s.trial_correlation.max),
+            range(s.partial_r2.min, s.partial_r2.max, &prose_percent, "–"),
+            s.trial_correlation
+                .median
+                .map_or_else(|| "—".to_string(), r),
+            range(s.trial_correlation.min, s.trial_correlation.max, &r, " to "),
             s.participants
         );
     }
